@@ -1,0 +1,10 @@
+import { reactRouter } from "@react-router/dev/vite";
+import tailwindcss from "@tailwindcss/vite";
+import { defineConfig } from "vite";
+import path from "node:path";
+
+export default defineConfig({
+  plugins: [tailwindcss(), reactRouter()],
+  resolve: { alias: { "~": path.resolve(import.meta.dirname, "app") } },
+  server: { port: 3000, host: "127.0.0.1" },
+});
