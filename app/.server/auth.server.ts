@@ -1,0 +1,56 @@
+// Sign-in with remix-auth 4 (no sessions of its own) and a form strategy; the session cookie
+// is ours (session.server.ts).
+import { Authenticator } from "remix-auth";
+import { FormStrategy } from "remix-auth-form";
+import { User } from "./db/models.server";
+import { verifyPassword } from "./passwords.server";
+import { recordAttempt, throttleWait } from "./throttle.server";
+import { clientAddress } from "./client-address.server";
+
+export type SignedInUser = Pick<User, "id" | "email" | "role" | "displayName">;
+
+/** A sign-in failure whose message is safe to show as is. */
+export class SignInError extends Error {
+  constructor(
+    message: string,
+    readonly field: "email" | "password" | "form" = "form",
+  ) {
+    super(message);
+  }
+}
+
+export const GENERIC_FAILURE = "That e-mail and password do not match an account.";
+
+export function normaliseEmail(raw: unknown) {
+  return String(raw ?? "").trim().toLowerCase();
+}
+
+export const EMAIL_PATTERN = /^[^\s@]+@[^\s@]+\.[^\s@]+$/;
+
+export const authenticator = new Authenticator<SignedInUser>();
+
+authenticator.use(
+  new FormStrategy(async ({ form, request }) => {
+    const email = normaliseEmail(form.get("email"));
+    const password = String(form.get("password") ?? "");
+    if (!email) throw new SignInError("Enter your e-mail address.", "email");
+    if (!EMAIL_PATTERN.test(email)) throw new SignInError("That does not look like an e-mail address.", "email");
+    if (!password) throw new SignInError("Enter your password.", "password");
+
+    const ip = clientAddress(request);
+    const wait = await throttleWait(email, ip);
+    if (wait > 0) {
+      const minutes = Math.ceil(wait / 60000);
+      throw new SignInError(
+        `Too many failed attempts. Try again in ${minutes} minute${minutes === 1 ? "" : "s"}, or reset your password.`,
+      );
+    }
+    const user = await User.findOne({ where: { email } });
+    const ok = await verifyPassword(password, user?.passwordHash ?? null);
+    await recordAttempt(email, ip, ok);
+    // Unknown e-mail and wrong password get the same message, so accounts cannot be probed.
+    if (!ok || !user) throw new SignInError(GENERIC_FAILURE);
+    return { id: user.id, email: user.email, role: user.role, displayName: user.displayName };
+  }),
+  "form",
+);

@@ -1,0 +1,21 @@
+import type { ReactNode } from "react";
+
+/** A narrow centred page for signed-out screens (sign-in, invitation, reset). */
+export function NarrowPage({ title, children }: { title: string; children: ReactNode }) {
+  return (
+    <main className="mx-auto max-w-md px-4 py-10">
+      <p className="text-xl font-bold tracking-tight text-accent">Ratebook</p>
+      <h1 className="mt-4 mb-6 text-3xl font-bold">{title}</h1>
+      {children}
+    </main>
+  );
+}
+
+export function PageTitle({ children, sub }: { children: ReactNode; sub?: ReactNode }) {
+  return (
+    <div className="mb-6">
+      <h1 className="text-3xl font-bold">{children}</h1>
+      {sub ? <p className="mt-1 text-ink-soft">{sub}</p> : null}
+    </div>
+  );
+}

@@ -1,0 +1,136 @@
+import { data, Form, useFetcher, useNavigation } from "react-router";
+import type { Route } from "./+types/course";
+import { requireCourseRole, requireUser } from "~/.server/guards.server";
+import { courseMembers } from "~/.server/courses.server";
+import { changeMembershipRole, inviteToCourse, type FieldErrors } from "~/.server/people.server";
+import { Course, COURSE_ROLES } from "~/.server/db/models.server";
+import { Button, Field, FormMessage, SelectField } from "~/components/form";
+import { PageTitle } from "~/components/page";
+
+export const meta: Route.MetaFunction = ({ data }) => [{ title: `${data?.course.code ?? "Course"} · Ratebook` }];
+
+async function loadCourse(courseId: string) {
+  const id = Number(courseId);
+  const course = Number.isInteger(id) ? await Course.findByPk(id) : null;
+  if (!course) throw data({ message: "There is no course at this address." }, { status: 404 });
+  return course;
+}
+
+export async function loader({ request, params }: Route.LoaderArgs) {
+  const user = await requireUser(request);
+  const course = await loadCourse(params.courseId);
+  const myRole = await requireCourseRole(user, course.id, COURSE_ROLES);
+  const staffView = myRole !== "student";
+  const members = (await courseMembers(course.id))
+    .filter((m) => staffView || m.role !== "student" || m.userId === user.id)
+    .map((m) => ({
+      id: m.id,
+      role: m.role,
+      name: m.user!.displayName,
+      email: staffView ? m.user!.email : null,
+      pending: !m.user!.passwordHash,
+      isMe: m.userId === user.id,
+    }));
+  return { course: { id: course.id, code: course.code, title: course.title, term: course.term }, myRole, members, roles: COURSE_ROLES };
+}
+
+type ActionResult = { intent: string; errors: FieldErrors; values: Record<string, string>; notice: string | null };
+
+export async function action({ request, params }: Route.ActionArgs) {
+  const user = await requireUser(request);
+  const course = await loadCourse(params.courseId);
+  await requireCourseRole(user, course.id, ["instructor"]);
+  const form = await request.formData();
+  const intent = String(form.get("intent") ?? "");
+  const reply = (r: Omit<ActionResult, "intent">, status = 200) => data<ActionResult>({ intent, ...r }, { status });
+  if (intent === "invite") {
+    const result = await inviteToCourse(user, course.id, { email: form.get("email"), displayName: form.get("displayName"), role: form.get("role") });
+    if (!result.ok) return reply({ errors: result.errors, values: Object.fromEntries(form) as Record<string, string>, notice: null }, 400);
+    const notice = result.value.invited ? `Invitation sent to ${form.get("email")}.` : `${form.get("email")} already has an account and is now in this course.`;
+    return reply({ errors: {}, values: {}, notice });
+  }
+  if (intent === "change-role") {
+    const result = await changeMembershipRole(user, course.id, Number(form.get("membershipId")), form.get("role"));
+    if (!result.ok) return reply({ errors: result.errors, values: {}, notice: null }, 400);
+    return reply({ errors: {}, values: {}, notice: "Role changed." });
+  }
+  throw data({ message: `Unknown action "${String(intent)}".` }, { status: 400 });
+}
+
+function RoleSelect({ membershipId, role, roles, name }: { membershipId: number; role: string; roles: readonly string[]; name: string }) {
+  const fetcher = useFetcher<typeof action>();
+  const error = fetcher.data?.errors.role ?? fetcher.data?.errors.form;
+  return (
+    <fetcher.Form method="post" className="flex items-center gap-2">
+      <input type="hidden" name="intent" value="change-role" />
+      <input type="hidden" name="membershipId" value={membershipId} />
+      <label className="sr-only" htmlFor={`role-${membershipId}`}>Role of {name}</label>
+      <select
+        id={`role-${membershipId}`}
+        name="role"
+        defaultValue={role}
+        className="rounded border border-ink-soft bg-white px-2 py-1"
+        onChange={(e) => fetcher.submit(e.currentTarget.form)}
+      >
+        {roles.map((r) => <option key={r} value={r}>{r}</option>)}
+      </select>
+      {fetcher.state !== "idle" ? <span className="text-sm text-ink-soft">saving…</span> : null}
+      {error ? <span role="alert" className="text-sm font-bold text-bad">✕ {error}</span> : null}
+    </fetcher.Form>
+  );
+}
+
+export default function CoursePage({ loaderData, actionData }: Route.ComponentProps) {
+  const { course, myRole, members, roles } = loaderData;
+  const busy = useNavigation().state === "submitting";
+  const inviteErrors: FieldErrors = actionData?.intent === "invite" ? actionData.errors : {};
+  const values: Record<string, string> = actionData?.intent === "invite" ? actionData.values : {};
+  const isInstructor = myRole === "instructor";
+  return (
+    <>
+      <PageTitle sub={`${course.title}${course.term ? ` · ${course.term}` : ""} · your role: ${myRole}`}>{course.code}</PageTitle>
+      {actionData?.notice && actionData.intent === "invite" ? <FormMessage tone="info">{actionData.notice}</FormMessage> : null}
+      <div className="grid gap-8 lg:grid-cols-[2fr_1fr]">
+        <section aria-labelledby="members-h">
+          <h2 id="members-h" className="mb-3 text-xl font-bold">{myRole === "student" ? "Staff" : "People"} ({members.length})</h2>
+          <table className="w-full border-collapse bg-white text-left">
+            <thead>
+              <tr className="border-b-2 border-ink">
+                <th className="px-3 py-2">Name</th>
+                {myRole !== "student" ? <th className="px-3 py-2">E-mail</th> : null}
+                <th className="px-3 py-2">Role</th>
+                <th className="px-3 py-2">Account</th>
+              </tr>
+            </thead>
+            <tbody>
+              {members.map((m) => (
+                <tr key={m.id} className="border-b border-rule">
+                  <td className="px-3 py-2">{m.name}{m.isMe ? " (you)" : ""}</td>
+                  {myRole !== "student" ? <td className="px-3 py-2">{m.email}</td> : null}
+                  <td className="px-3 py-2">
+                    {isInstructor ? <RoleSelect membershipId={m.id} role={m.role} roles={roles} name={m.name} /> : m.role}
+                  </td>
+                  <td className="px-3 py-2">{m.pending ? "◔ invited, not yet joined" : "● active"}</td>
+                </tr>
+              ))}
+            </tbody>
+          </table>
+        </section>
+        {isInstructor ? (
+          <section aria-labelledby="invite-h" className="rounded border border-rule bg-white p-4">
+            <h2 id="invite-h" className="mb-3 text-xl font-bold">Add a person</h2>
+            {inviteErrors.form ? <FormMessage tone="error">{inviteErrors.form}</FormMessage> : null}
+            <Form method="post" noValidate>
+              <input type="hidden" name="intent" value="invite" />
+              <Field label="E-mail" name="email" type="email" defaultValue={values.email} error={inviteErrors.email} />
+              <Field label="Name" name="displayName" defaultValue={values.displayName} error={inviteErrors.displayName} />
+              <SelectField label="Role in this course" name="role" options={roles} defaultValue={values.role ?? "student"} error={inviteErrors.role} />
+              <Button busy={busy}>Add and invite</Button>
+            </Form>
+            <p className="mt-3 text-sm text-ink-soft">People new to Ratebook get an e-mail with a link to choose a password; the link works once, for 7 days.</p>
+          </section>
+        ) : null}
+      </div>
+    </>
+  );
+}

@@ -1,0 +1,39 @@
+import { data, Form, Link, useNavigation } from "react-router";
+import type { Route } from "./+types/password-forgot";
+import { requestPasswordReset, type FieldErrors } from "~/.server/people.server";
+import { Button, Field, FormMessage } from "~/components/form";
+import { NarrowPage } from "~/components/page";
+
+export const meta: Route.MetaFunction = () => [{ title: "Reset password · Ratebook" }];
+
+export async function action({ request }: Route.ActionArgs) {
+  const form = await request.formData();
+  const email = String(form.get("email") ?? "");
+  const result = await requestPasswordReset(email);
+  const errors: FieldErrors = result.ok ? {} : result.errors;
+  return data({ sent: result.ok, errors, email }, { status: result.ok ? 200 : 400 });
+}
+
+export default function PasswordForgot({ actionData }: Route.ComponentProps) {
+  const busy = useNavigation().state === "submitting";
+  if (actionData?.sent) {
+    return (
+      <NarrowPage title="Check your e-mail">
+        <FormMessage tone="info">
+          If {actionData.email} belongs to a Ratebook account, a link to choose a new password is on its way. It works once and for one hour.
+        </FormMessage>
+        <Link className="text-accent underline" to="/sign-in">Back to sign-in</Link>
+      </NarrowPage>
+    );
+  }
+  return (
+    <NarrowPage title="Reset your password">
+      <p className="mb-6">Enter the e-mail you sign in with. We will send a link to choose a new password.</p>
+      <Form method="post" noValidate>
+        <Field label="E-mail" name="email" type="email" autoComplete="username" defaultValue={actionData?.email} error={actionData?.errors.email} />
+        <Button busy={busy}>Send the link</Button>
+      </Form>
+      <p className="mt-6"><Link className="text-accent underline" to="/sign-in">Back to sign-in</Link></p>
+    </NarrowPage>
+  );
+}

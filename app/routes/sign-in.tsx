@@ -1,0 +1,68 @@
+import { data, Form, Link, redirect, useNavigation } from "react-router";
+import type { Route } from "./+types/sign-in";
+import { authenticator, SignInError } from "~/.server/auth.server";
+import { currentUser, safeReturnTo } from "~/.server/guards.server";
+import { startSession } from "~/.server/session.server";
+import { Button, Field, FormMessage } from "~/components/form";
+import { NarrowPage } from "~/components/page";
+
+export const meta: Route.MetaFunction = () => [{ title: "Sign in · Ratebook" }];
+
+export async function loader({ request }: Route.LoaderArgs) {
+  const url = new URL(request.url);
+  const returnTo = safeReturnTo(url.searchParams.get("returnTo"));
+  if (await currentUser(request)) throw redirect(returnTo);
+  return { returnTo, reset: url.searchParams.get("reset") === "1" };
+}
+
+export async function action({ request }: Route.ActionArgs) {
+  // authenticate() consumes the body, so read the other fields from a clone first.
+  const form = await request.clone().formData();
+  const email = String(form.get("email") ?? "");
+  const returnTo = safeReturnTo(form.get("returnTo"));
+  try {
+    const user = await authenticator.authenticate("form", request);
+    return startSession(user.id, returnTo);
+  } catch (error) {
+    if (error instanceof SignInError) {
+      return data({ error: error.message, field: error.field, email }, { status: 400 });
+    }
+    throw error;
+  }
+}
+
+export default function SignIn({ loaderData, actionData }: Route.ComponentProps) {
+  const busy = useNavigation().state === "submitting";
+  const formError = actionData?.field === "form" ? actionData.error : undefined;
+  return (
+    <NarrowPage title="Sign in">
+      {loaderData.reset ? <FormMessage tone="info">Your password is changed. Sign in with the new one.</FormMessage> : null}
+      {formError ? <FormMessage tone="error">{formError}</FormMessage> : null}
+      <Form method="post" noValidate>
+        <input type="hidden" name="returnTo" value={loaderData.returnTo} />
+        <Field
+          label="E-mail"
+          name="email"
+          type="email"
+          autoComplete="username"
+          defaultValue={actionData?.email}
+          error={actionData?.field === "email" ? actionData.error : undefined}
+          required
+        />
+        <Field
+          label="Password"
+          name="password"
+          type="password"
+          autoComplete="current-password"
+          error={actionData?.field === "password" ? actionData.error : undefined}
+          required
+        />
+        <Button busy={busy}>Sign in</Button>
+      </Form>
+      <p className="mt-6">
+        <Link className="text-accent underline" to="/password/forgot">Forgot your password?</Link>
+      </p>
+      <p className="mt-2 text-sm text-ink-soft">Students and staff join through an invitation from their instructor.</p>
+    </NarrowPage>
+  );
+}

@@ -1,0 +1,57 @@
+// `npm start` : everything for a local demo in one command. Starts PostgreSQL on loopback,
+// migrates, adds the demo data, starts the local mail sink, builds, serves, prints sign-ins.
+import { spawn, spawnSync } from "node:child_process";
+import path from "node:path";
+import { openAppDatabase } from "./lib/database";
+import { startMailSink } from "./lib/mail-sink";
+import { projectRoot } from "./lib/postgres";
+
+const port = Number(process.env.PORT ?? 3000);
+const bin = (name: string) => path.join(projectRoot, "node_modules", ".bin", name);
+
+const db = await openAppDatabase();
+await db.migrate(false);
+const { seedDemo } = await import("../db/seeds/demo");
+const signIns = await seedDemo();
+await db.close();
+console.log(`[db] ready at ${db.url.replace(/\/\/[^@]*@/, "//")}`);
+
+const env: NodeJS.ProcessEnv = { ...process.env, DATABASE_URL: db.url, PORT: String(port) };
+if (!process.env.SMTP_URL) {
+  const smtpPort = Number(process.env.MAIL_SINK_SMTP_PORT ?? 2525);
+  const httpPort = Number(process.env.MAIL_SINK_HTTP_PORT ?? 2526);
+  await startMailSink({ smtpPort, httpPort, file: path.join(projectRoot, ".data", "mail", "messages.jsonl") });
+  env.SMTP_URL = `smtp://127.0.0.1:${smtpPort}`;
+  env.MAIL_SINK_URL = `http://127.0.0.1:${httpPort}`;
+  console.log(`[mail] local mail sink on 127.0.0.1:${smtpPort}; admins read it at /admin/mail`);
+}
+// The local demo is served over plain http, where a Secure cookie would never come back.
+env.SESSION_COOKIE_SECURE ??= "0";
+env.APP_URL ??= `http://localhost:${port}`;
+// Loopback only unless told otherwise: the demo runs with a development session secret.
+env.HOST ??= "127.0.0.1";
+
+if (process.env.SKIP_BUILD !== "1") {
+  console.log("[build] react-router build ...");
+  const build = spawnSync(bin("react-router"), ["build"], { cwd: projectRoot, stdio: ["ignore", "ignore", "inherit"] });
+  if (build.status !== 0) {
+    console.error("[build] failed; run `npx react-router build` to see the whole output");
+    process.exit(1);
+  }
+}
+
+const server = spawn(bin("react-router-serve"), ["./build/server/index.js"], { cwd: projectRoot, env, stdio: ["ignore", "pipe", "inherit"] });
+server.stdout.on("data", (chunk: Buffer) => {
+  process.stdout.write(chunk);
+  if (chunk.toString().includes("http://")) printSignIns();
+});
+let printed = false;
+function printSignIns() {
+  if (printed) return;
+  printed = true;
+  console.log(`\nRatebook is running at ${env.APP_URL}\n\nDemo sign-ins (invented demo data):`);
+  for (const s of signIns) console.log(`  ${s.role.padEnd(13)} ${s.email.padEnd(38)} ${s.password}`);
+  console.log("\nPress Ctrl+C to stop. PostgreSQL keeps running; `npm run db:stop` stops it.\n");
+}
+for (const sig of ["SIGINT", "SIGTERM"] as const) process.on(sig, () => server.kill(sig));
+server.on("exit", (code) => process.exit(code ?? 0));
