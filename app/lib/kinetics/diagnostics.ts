@@ -1,0 +1,135 @@
+// Checks on a run that an instructor should see next to the fitted k. Each flag has a
+// stable code, a plain message and the rows concerned (0-based indices into the points).
+
+import { runsTest } from "./statistics.ts";
+
+export type FlagCode =
+  | "few-points"
+  | "low-conversion"
+  | "unit-slip"
+  | "curvature"
+  | "beyond-asymptote"
+  | "time-order"
+  | "order-mismatch";
+
+export interface Flag {
+  code: FlagCode;
+  message: string;
+  rows: number[];
+}
+
+// Thresholds below are common practice, no source, unless marked otherwise.
+export const MIN_POINTS = 5;
+export const MIN_FRACTION_REACTED = 0.2;
+/** one-sided level for the runs test: few false alarms on good data */
+export const CURVATURE_P = 0.005;
+/** the runs test's normal approximation needs a handful of residuals of each sign */
+export const CURVATURE_MIN_POINTS = 10;
+/** a ratio within this factor of 60, 3600 or 1000 (or inverses) counts as "near" */
+export const UNIT_SLIP_BAND = 1.5;
+
+export function checkFewPoints(n: number): Flag | null {
+  if (n >= MIN_POINTS) return null;
+  return {
+    code: "few-points",
+    message: `Only ${n} points: at least ${MIN_POINTS} are needed for a trustworthy rate constant and its uncertainty.`,
+    rows: Array.from({ length: n }, (_, i) => i),
+  };
+}
+
+/** Negative times, times that repeat an earlier one, and times earlier than the row before. */
+export function checkTimeOrder(times: readonly number[]): Flag | null {
+  const negative: number[] = [];
+  const repeated: number[] = [];
+  const decreasing: number[] = [];
+  const seen = new Set<number>();
+  times.forEach((t, i) => {
+    if (t < 0) negative.push(i);
+    if (seen.has(t)) repeated.push(i);
+    seen.add(t);
+    if (i > 0 && t < times[i - 1]) decreasing.push(i);
+  });
+  if (negative.length + repeated.length + decreasing.length === 0) return null;
+  const parts: string[] = [];
+  if (negative.length) parts.push(`${negative.length} negative`);
+  if (repeated.length) parts.push(`${repeated.length} repeating an earlier time`);
+  if (decreasing.length) parts.push(`${decreasing.length} earlier than the row before`);
+  const rows = [...new Set([...negative, ...repeated, ...decreasing])].sort((a, b) => a - b);
+  return { code: "time-order", message: `Times out of order: ${parts.join(", ")}. Check the time column.`, rows };
+}
+
+/** Rows at or past the long-time limit of CA: the straight-line form is undefined there. */
+export function checkBeyondAsymptote(rows: readonly number[], limitText: string): Flag | null {
+  if (rows.length === 0) return null;
+  return {
+    code: "beyond-asymptote",
+    message: `${rows.length} value(s) at or past the long-time limit (${limitText}), where the straight-line form is undefined; they were left out of the straight-line fit.`,
+    rows: [...rows],
+  };
+}
+
+/** fractionReacted: share of the limiting reagent used up by the last time. */
+export function checkLowConversion(fractionReacted: number, limiting: "A" | "B", lastRow: number): Flag | null {
+  if (!(fractionReacted < MIN_FRACTION_REACTED)) return null;
+  const pct = Math.max(0, fractionReacted * 100).toFixed(0);
+  return {
+    code: "low-conversion",
+    message: `Only about ${pct} % of the limiting reagent (${limiting}) had reacted by the last point; below ${MIN_FRACTION_REACTED * 100} % the rate law and k are poorly determined. Run longer.`,
+    rows: [lastRow],
+  };
+}
+
+const SLIPS: { factor: number; hint: string }[] = [
+  { factor: 60, hint: "minutes entered as seconds (or hours as minutes)" },
+  { factor: 1 / 60, hint: "seconds entered as minutes (or minutes as hours)" },
+  { factor: 3600, hint: "hours entered as seconds" },
+  { factor: 1 / 3600, hint: "seconds entered as hours" },
+  { factor: 1000, hint: "mol/L entered as mmol/L, or a reference k per millisecond" },
+  { factor: 1 / 1000, hint: "mmol/L entered as mol/L" },
+];
+
+/** Fitted k off from the reference by about a unit-conversion factor. */
+export function checkUnitSlip(k: number, kReference: number): Flag | null {
+  const ratio = k / kReference;
+  if (!(ratio > 0)) return null;
+  for (const slip of SLIPS) {
+    if (Math.abs(Math.log(ratio / slip.factor)) <= Math.log(UNIT_SLIP_BAND)) {
+      return {
+        code: "unit-slip",
+        message: `The fitted k is ${formatRatio(ratio)} times the reference k, close to a unit factor: perhaps ${slip.hint}. Check the units.`,
+        rows: [],
+      };
+    }
+  }
+  return null;
+}
+
+function formatRatio(r: number): string {
+  return r >= 1 ? r.toPrecision(3) : `1/${(1 / r).toPrecision(3)}`;
+}
+
+/**
+ * Residuals of the nonlinear fit that come in long same-sign stretches (runs test) mean the
+ * curve bends away from the data: wrong order, wrong Sinf, drift or a temperature change.
+ * `rowsInTimeOrder[i]` is the row of `residualsInTimeOrder[i]`.
+ */
+export function checkCurvature(residualsInTimeOrder: readonly number[], rowsInTimeOrder: readonly number[]): Flag | null {
+  if (residualsInTimeOrder.length < CURVATURE_MIN_POINTS) return null;
+  const test = runsTest(residualsInTimeOrder);
+  if (!test || !(test.pLow < CURVATURE_P)) return null;
+  return {
+    code: "curvature",
+    message: `The residuals bend systematically (${test.runs} runs of one sign where about ${test.expected.toFixed(0)} are expected, p = ${test.pLow.toPrecision(2)}): the rate law may not fit, or Sinf, the start time or the temperature drifted. The rows listed are the longest stretch on one side of the curve.`,
+    rows: test.longestRun.map((i) => rowsInTimeOrder[i]).sort((a, b) => a - b),
+  };
+}
+
+/** Another supported rate law leaves a much smaller residual sum of squares (a rule of this engine). */
+export function checkOrderMismatch(requested: string, requestedSse: number, best: string, bestSse: number): Flag | null {
+  if (best === requested || !(requestedSse > 2 * bestSse)) return null;
+  return {
+    code: "order-mismatch",
+    message: `The ${best} law fits these data better than the ${requested} law asked for (residual sum of squares ${bestSse.toPrecision(3)} against ${requestedSse.toPrecision(3)}).`,
+    rows: [],
+  };
+}

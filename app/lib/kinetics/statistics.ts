@@ -1,0 +1,70 @@
+// Small statistical helpers: Student t quantiles (from jstat) and a runs test on residual signs.
+
+import jStat from "jstat";
+
+/** Two-sided Student t critical value, e.g. level 0.95 -> t(0.975, dof). NaN without degrees of freedom. */
+export function tCritical(dof: number, level = 0.95): number {
+  if (!(dof >= 1)) return NaN;
+  return jStat.studentt.inv(0.5 + level / 2, dof);
+}
+
+/** Symmetric confidence interval estimate +/- t * stdErr. */
+export function confidenceInterval(estimate: number, stdErr: number, dof: number, level = 0.95): [number, number] {
+  const half = tCritical(dof, level) * stdErr;
+  return [estimate - half, estimate + half];
+}
+
+export interface RunsTest {
+  runs: number;
+  expected: number;
+  /** standard score of the run count; strongly negative means residuals come in long same-sign stretches */
+  z: number;
+  /** one-sided probability of this few runs or fewer under random signs (normal approximation) */
+  pLow: number;
+  /** indices (into the input order) of the longest same-sign stretch */
+  longestRun: number[];
+}
+
+/**
+ * Wald-Wolfowitz runs test on the signs of residuals taken in time order (Wald and
+ * Wolfowitz, Ann. Math. Statist. 11 (1940) 147, from memory). Zeros are skipped.
+ * Returns null when there are too few residuals of either sign for the normal approximation.
+ */
+export function runsTest(residuals: ArrayLike<number>): RunsTest | null {
+  let nPos = 0;
+  let nNeg = 0;
+  let runs = 0;
+  let prev = 0;
+  let start = -1;
+  let bestStart = 0;
+  let bestEnd = -1;
+  const idx: number[] = [];
+  for (let i = 0; i < residuals.length; i++) {
+    const s = Math.sign(residuals[i]);
+    if (s === 0 || Number.isNaN(s)) continue;
+    idx.push(i);
+    if (s > 0) nPos++;
+    else nNeg++;
+    if (s !== prev) {
+      runs++;
+      start = idx.length - 1;
+      prev = s;
+    }
+    if (idx.length - 1 - start > bestEnd - bestStart) {
+      bestStart = start;
+      bestEnd = idx.length - 1;
+    }
+  }
+  if (nPos < 2 || nNeg < 2) return null;
+  const n = nPos + nNeg;
+  const expected = (2 * nPos * nNeg) / n + 1;
+  const variance = ((expected - 1) * (expected - 2)) / (n - 1);
+  const z = (runs - expected) / Math.sqrt(variance);
+  return {
+    runs,
+    expected,
+    z,
+    pLow: jStat.normal.cdf(z, 0, 1),
+    longestRun: idx.slice(bestStart, bestEnd + 1),
+  };
+}
