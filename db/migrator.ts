@@ -6,7 +6,7 @@ import * as m0001 from "./migrations/0001-foundation";
 
 const migrations = [{ name: "0001-foundation", ...m0001 }];
 
-export function createMigrator(sequelize: Sequelize, logger: Console | undefined = console) {
+export function createMigrator(sequelize: Sequelize, opts: { quiet?: boolean } = {}) {
   return new Umzug({
     migrations: migrations.map((m) => ({
       name: m.name,
@@ -15,6 +15,6 @@ export function createMigrator(sequelize: Sequelize, logger: Console | undefined
     })),
     context: sequelize.getQueryInterface(),
     storage: new SequelizeStorage({ sequelize, tableName: "schema_migrations" }),
-    logger,
+    logger: opts.quiet ? undefined : console,
   });
 }

@@ -1,6 +1,7 @@
 // Vitest config kept apart from vite.config.ts: the reactRouter() plugin must not load in tests.
 import { defineConfig } from "vitest/config";
 import path from "node:path";
+import { testEnv } from "./setup/test-env.ts";
 
 const root = path.resolve(import.meta.dirname, "..");
 const alias = { "~": path.join(root, "app") };
@@ -27,6 +28,7 @@ export default defineConfig({
           include: ["tests/integration/**/*.test.ts", "tests/browser/**/*.test.ts"],
           environment: "node",
           globalSetup: [path.join(root, "tests/setup/global.ts")],
+          env: testEnv,
           fileParallelism: false,
           testTimeout: 30000,
           hookTimeout: 120000,

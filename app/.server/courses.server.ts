@@ -38,12 +38,17 @@ export async function coursesFor(user: User): Promise<CourseSummary[]> {
   });
 }
 
+const ROLE_ORDER: Record<CourseRole, number> = { instructor: 0, demonstrator: 1, student: 2 };
+
+/** Members, staff first, then by name. */
 export async function courseMembers(courseId: number) {
-  return CourseMembership.findAll({
+  const members = await CourseMembership.findAll({
     where: { courseId },
     include: [{ model: User, as: "user", attributes: ["id", "email", "displayName", "passwordHash"] }],
-    order: [["role", "ASC"], [{ model: User, as: "user" }, "displayName", "ASC"]],
   });
+  return members.sort(
+    (a, b) => ROLE_ORDER[a.role] - ROLE_ORDER[b.role] || a.user!.displayName.localeCompare(b.user!.displayName),
+  );
 }
 
 export async function createCourse(actor: User, input: { code: unknown; title: unknown; term: unknown }): Promise<Outcome<Course>> {

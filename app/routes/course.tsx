@@ -117,7 +117,7 @@ export default function CoursePage({ loaderData, actionData }: Route.ComponentPr
           </table>
         </section>
         {isInstructor ? (
-          <section aria-labelledby="invite-h" className="rounded border border-rule bg-white p-4">
+          <section aria-labelledby="invite-h" className="self-start rounded border border-rule bg-white p-4">
             <h2 id="invite-h" className="mb-3 text-xl font-bold">Add a person</h2>
             {inviteErrors.form ? <FormMessage tone="error">{inviteErrors.form}</FormMessage> : null}
             <Form method="post" noValidate>

@@ -10,7 +10,7 @@ export async function openAppDatabase(db = process.env.RATEBOOK_DB ?? "ratebook"
   return {
     url: process.env.DATABASE_URL,
     sequelize,
-    migrate: async (log = true) => createMigrator(sequelize, log ? console : undefined).up(),
+    migrate: async (log = true) => createMigrator(sequelize, { quiet: !log }).up(),
     close: closeSequelize,
   };
 }

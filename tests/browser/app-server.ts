@@ -1,0 +1,46 @@
+// Starts the built app (react-router-serve) against the test database for browser tests.
+import { spawn, spawnSync, type ChildProcess } from "node:child_process";
+import fs from "node:fs";
+import path from "node:path";
+import { testEnv, TEST_APP_PORT } from "../setup/test-env";
+
+const root = path.resolve(import.meta.dirname, "..", "..");
+const bin = (name: string) => path.join(root, "node_modules", ".bin", name);
+
+export const CHROMIUM_PATH = process.env.CHROMIUM_PATH ?? "/usr/bin/chromium";
+// Flags for a sandboxed machine with no outside network (see DEVELOPERS.md).
+export const CHROMIUM_ARGS = [
+  "--headless",
+  "--no-sandbox",
+  "--disable-gpu",
+  "--disable-quic",
+  "--no-first-run",
+  "--disable-background-networking",
+  "--disable-component-update",
+  "--disable-sync",
+];
+
+export async function startAppServer(): Promise<{ url: string; stop: () => void }> {
+  if (!fs.existsSync(path.join(root, "build", "server", "index.js"))) {
+    const build = spawnSync(bin("react-router"), ["build"], { cwd: root, encoding: "utf8" });
+    if (build.status !== 0) throw new Error(`react-router build failed:\n${build.stderr}`);
+  }
+  const env = { ...process.env, ...testEnv, PORT: String(TEST_APP_PORT), HOST: "127.0.0.1", NODE_ENV: "production", SESSION_COOKIE_SECURE: "0" };
+  const child: ChildProcess = spawn(bin("react-router-serve"), ["./build/server/index.js"], { cwd: root, env, stdio: ["ignore", "pipe", "pipe"] });
+  let output = "";
+  child.stdout!.on("data", (c) => (output += c));
+  child.stderr!.on("data", (c) => (output += c));
+  const url = `http://127.0.0.1:${TEST_APP_PORT}`;
+  for (let i = 0; i < 100; i++) {
+    try {
+      const res = await fetch(`${url}/sign-in`);
+      if (res.ok) return { url, stop: () => child.kill("SIGTERM") };
+    } catch {
+      /* not up yet */
+    }
+    if (child.exitCode !== null) break;
+    await new Promise((r) => setTimeout(r, 200));
+  }
+  child.kill("SIGTERM");
+  throw new Error(`the app server did not start on ${url}:\n${output}`);
+}

@@ -1,0 +1,81 @@
+// End to end in Debian's chromium: sign in as the demo instructor and see the dashboard;
+// a student meets the 403 page on an instructor page.
+import fs from "node:fs";
+import path from "node:path";
+import { afterAll, beforeAll, describe, expect, test } from "vitest";
+import { chromium, type Browser } from "playwright-core";
+import { CHROMIUM_ARGS, CHROMIUM_PATH, startAppServer } from "./app-server";
+
+const shots = path.resolve(import.meta.dirname, "..", "..", "test-results");
+let server: Awaited<ReturnType<typeof startAppServer>>;
+let browser: Browser;
+
+beforeAll(async () => {
+  if (!fs.existsSync(CHROMIUM_PATH)) {
+    throw new Error(`Chromium not found at ${CHROMIUM_PATH}. Install Debian's package: apt-get install -y chromium (npm test does this when run as root).`);
+  }
+  fs.mkdirSync(shots, { recursive: true });
+  server = await startAppServer();
+  browser = await chromium.launch({ executablePath: CHROMIUM_PATH, args: CHROMIUM_ARGS });
+}, 180_000);
+
+afterAll(async () => {
+  await browser?.close();
+  server?.stop();
+});
+
+async function signIn(page: import("playwright-core").Page, email: string, password: string) {
+  await page.getByLabel("E-mail").fill(email);
+  await page.getByLabel("Password").fill(password);
+  await page.getByRole("button", { name: "Sign in" }).click();
+}
+
+describe("browser", () => {
+  test("the demo instructor signs in and sees the dashboard", async () => {
+    const page = await browser.newPage({ viewport: { width: 1280, height: 800 } });
+    await page.goto(`${server.url}/dashboard`);
+    await expect.poll(() => new URL(page.url()).pathname).toBe("/sign-in");
+    expect(new URL(page.url()).searchParams.get("returnTo")).toBe("/dashboard");
+
+    await signIn(page, "instructor@demo.ratebook.invalid", "wrong-password");
+    await expect.poll(() => page.getByRole("alert").first().textContent()).toContain("do not match an account");
+    expect(await page.getByLabel("E-mail").inputValue()).toBe("instructor@demo.ratebook.invalid");
+    await page.screenshot({ path: path.join(shots, "sign-in-error.png") });
+
+    await page.getByLabel("Password").fill("demo-instructor-pass");
+    await page.getByRole("button", { name: "Sign in" }).click();
+    await page.waitForURL(`${server.url}/dashboard`);
+    await expect.poll(() => page.getByRole("heading", { level: 1 }).textContent()).toBe("Hello, Dr Rowan Vale (demo instructor)");
+    expect(await page.getByRole("link", { name: "KIN-DEMO" }).count()).toBe(1);
+    expect(await page.locator("header").textContent()).toContain("instructor");
+    expect(await page.getByRole("navigation", { name: "Main" }).textContent()).toContain("New course");
+    // The font ships with the app: no request leaves for a font CDN.
+    const family = await page.evaluate(() => getComputedStyle(document.body).fontFamily);
+    expect(family).toContain("Atkinson Hyperlegible");
+    await page.screenshot({ path: path.join(shots, "dashboard-instructor.png"), fullPage: true });
+
+    await page.getByRole("link", { name: "KIN-DEMO" }).click();
+    await page.waitForURL(/\/courses\/\d+$/);
+    await expect.poll(() => page.getByRole("heading", { name: "Add a person" }).count()).toBe(1);
+    await page.screenshot({ path: path.join(shots, "course-instructor.png"), fullPage: true });
+
+    await page.getByRole("button", { name: "Sign out" }).click();
+    await page.waitForURL(`${server.url}/sign-in`);
+    await page.close();
+  });
+
+  test("a student sees the 403 page on an instructor page", async () => {
+    const page = await browser.newPage();
+    await page.goto(`${server.url}/sign-in`);
+    await signIn(page, "student@demo.ratebook.invalid", "demo-student-pass");
+    await page.waitForURL(`${server.url}/dashboard`);
+    const res = await page.goto(`${server.url}/courses/new`);
+    expect(res?.status()).toBe(403);
+    expect(await page.getByRole("heading", { level: 1 }).textContent()).toBe("Not allowed");
+    await page.screenshot({ path: path.join(shots, "forbidden-student.png") });
+    const missing = await page.goto(`${server.url}/no-such-page`);
+    expect(missing?.status()).toBe(404);
+    expect(await page.getByRole("heading", { level: 1 }).textContent()).toBe("Page not found");
+    await page.close();
+  });
+});

@@ -1,0 +1,31 @@
+// Vitest global setup for the integration project: a fresh test database (dropped and made
+// again on every run), migrated and seeded with the demo data, and a mail sink on test ports.
+import { Sequelize } from "sequelize";
+import pg from "pg";
+import { ensurePostgres } from "../../scripts/lib/postgres";
+import { startMailSink, type MailSink } from "../../scripts/lib/mail-sink";
+import { createMigrator } from "../../db/migrator";
+import { testEnv, TEST_MAIL_HTTP_PORT, TEST_SMTP_PORT } from "./test-env";
+
+let sink: MailSink | null = null;
+
+export async function setup() {
+  Object.assign(process.env, testEnv);
+  if (!process.env.TEST_DATABASE_URL) {
+    delete process.env.DATABASE_URL; // make ensurePostgres manage the local cluster
+    await ensurePostgres("ratebook_test", { reset: true });
+    process.env.DATABASE_URL = testEnv.DATABASE_URL;
+  }
+  const sequelize = new Sequelize(testEnv.DATABASE_URL, { dialect: "postgres", dialectModule: pg, logging: false });
+  await createMigrator(sequelize, { quiet: true }).up();
+  await sequelize.close();
+  const { seedDemo } = await import("../../db/seeds/demo");
+  await seedDemo();
+  const { closeSequelize } = await import("../../app/.server/db/sequelize.server");
+  await closeSequelize();
+  sink = await startMailSink({ smtpPort: TEST_SMTP_PORT, httpPort: TEST_MAIL_HTTP_PORT });
+}
+
+export async function teardown() {
+  await sink?.close();
+}
