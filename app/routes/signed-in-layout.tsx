@@ -1,15 +1,19 @@
-import { Form, NavLink, Outlet } from "react-router";
+import { Form, NavLink, Outlet, useRouteLoaderData } from "react-router";
+import type { ReactNode } from "react";
 import type { Route } from "./+types/signed-in-layout";
 import { requireUser } from "~/.server/guards.server";
 import { navFor } from "~/lib/navigation";
+import { ErrorPanel } from "~/components/error-panel";
 
 export async function loader({ request }: Route.LoaderArgs) {
   const user = await requireUser(request);
   return { user: { displayName: user.displayName, email: user.email, role: user.role }, nav: navFor(user.role) };
 }
 
-export default function SignedInLayout({ loaderData }: Route.ComponentProps) {
-  const { user, nav } = loaderData;
+type LayoutData = Awaited<ReturnType<typeof loader>>;
+
+function Shell({ data, children }: { data: LayoutData; children: ReactNode }) {
+  const { user, nav } = data;
   return (
     <div className="min-h-screen">
       <header className="no-print border-b border-rule bg-white">
@@ -40,9 +44,26 @@ export default function SignedInLayout({ loaderData }: Route.ComponentProps) {
           </div>
         </div>
       </header>
-      <main className="mx-auto max-w-6xl px-4 py-8">
-        <Outlet />
-      </main>
+      <main className="mx-auto max-w-6xl px-4 py-8">{children}</main>
     </div>
+  );
+}
+
+export default function SignedInLayout({ loaderData }: Route.ComponentProps) {
+  return (
+    <Shell data={loaderData}>
+      <Outlet />
+    </Shell>
+  );
+}
+
+// A page below the layout failed (403, 404, 500): keep the header so people can move on.
+export function ErrorBoundary({ error }: Route.ErrorBoundaryProps) {
+  const data = useRouteLoaderData<LayoutData>("routes/signed-in-layout");
+  if (!data) return <main className="px-4"><ErrorPanel error={error} signedIn={false} /></main>;
+  return (
+    <Shell data={data}>
+      <ErrorPanel error={error} signedIn />
+    </Shell>
   );
 }

@@ -72,6 +72,8 @@ describe("browser", () => {
     const res = await page.goto(`${server.url}/courses/new`);
     expect(res?.status()).toBe(403);
     expect(await page.getByRole("heading", { level: 1 }).textContent()).toBe("Not allowed");
+    // The header stays, so the student can move on; the student's menu has no instructor items.
+    expect(await page.getByRole("navigation", { name: "Main" }).textContent()).toBe("Dashboard");
     await page.screenshot({ path: path.join(shots, "forbidden-student.png") });
     const missing = await page.goto(`${server.url}/no-such-page`);
     expect(missing?.status()).toBe(404);
