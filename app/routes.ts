@@ -21,7 +21,7 @@ export default [
   ]),
 
   // JSON API (resource routes).
-  ...prefix("api", [route("me", "routes/api-me.ts")]),
+  ...prefix("api", [route("me", "routes/api-me.ts"), route("fit", "routes/api-fit.ts")]),
 
   route("*", "routes/not-found.tsx"),
 ] satisfies RouteConfig;

@@ -1,0 +1,59 @@
+// The JSON fit API: the same engine as `npm run fit`, behind the role guard.
+import { describe, expect, test } from "vitest";
+import { action as signIn } from "~/routes/sign-in";
+import { action as fitAction } from "~/routes/api-fit";
+import { call, cookieFrom, request } from "./helpers";
+
+async function cookieFor(who: string) {
+  return cookieFrom(await call(signIn, request("/sign-in", { form: { email: `${who}@demo.ratebook.invalid`, password: `demo-${who}-pass` } })));
+}
+
+function post(body: string, cookie?: string) {
+  const headers: Record<string, string> = { "Content-Type": "application/json" };
+  if (cookie) headers.Cookie = cookie;
+  return new Request("http://127.0.0.1:3100/api/fit", { method: "POST", headers, body });
+}
+
+// Points from the integrated law for A + 2B with a stoichiometric feed, 1/CA - 1/CA0 = b k t
+// (Levenspiel, Chemical Reaction Engineering, 3rd ed., ch. 3; from memory).
+const k = 0.1; // L/(mol s)
+const CA0 = 0.02;
+const points = [0, 60, 120, 240, 480, 900, 1500].map((t) => [t, 1 / (1 / CA0 + 2 * k * t)]);
+const good = {
+  reaction: { a: 1, b: 2, orderA: 1, orderB: 1 },
+  feed: { CA0, CB0: 2 * CA0 },
+  units: { time: "s", concentration: "mol/L" },
+  measurement: { kind: "concentrationA" },
+  points,
+};
+
+describe("POST /api/fit", () => {
+  test("signed out: 401; a student: 403", async () => {
+    expect((await call(fitAction, post(JSON.stringify(good)))).status).toBe(401);
+    expect((await call(fitAction, post(JSON.stringify(good), await cookieFor("student")))).status).toBe(403);
+  });
+
+  test("an instructor gets the fit: stoichiometric model, k recovered from exact data", async () => {
+    const res = await call(fitAction, post(JSON.stringify(good), await cookieFor("instructor")));
+    expect(res.status).toBe(200);
+    const body = await res.json();
+    expect(body.model).toBe("second-order-AB-stoichiometric");
+    expect(body.kUnit).toBe("L/(mol*s)");
+    expect(body.k).toBeCloseTo(k, 8);
+    expect(body.n).toBe(points.length);
+  });
+
+  test("bad JSON and invalid requests get 400 with every problem and its place", async () => {
+    const cookie = await cookieFor("instructor");
+    const notJson = await call(fitAction, post("{ nope", cookie));
+    expect(notJson.status).toBe(400);
+    expect((await notJson.json()).errors[0].message).toMatch(/not valid JSON/);
+    const bad = { ...good, feed: { CA0: 0, CB0: 0.04 }, points: [[0, 0.02], [5, "x"], [10, -1]] };
+    const res = await call(fitAction, post(JSON.stringify(bad), cookie));
+    expect(res.status).toBe(400);
+    const paths = (await res.json()).errors.map((e: { path: string }) => e.path);
+    expect(paths).toEqual(expect.arrayContaining(["feed.CA0", "points[1][1]", "points[2][1]"]));
+    const unknownKind = await call(fitAction, post(JSON.stringify({ ...good, measurement: { kind: "smell" } }), cookie));
+    expect((await unknownKind.json()).errors.map((e: { path: string }) => e.path)).toContain("measurement.kind");
+  });
+});
