@@ -10,7 +10,8 @@ export type FlagCode =
   | "curvature"
   | "beyond-asymptote"
   | "time-order"
-  | "order-mismatch";
+  | "order-mismatch"
+  | "straight-line-bias";
 
 export interface Flag {
   code: FlagCode;
@@ -130,6 +131,24 @@ export function checkOrderMismatch(requested: string, requestedSse: number, best
   return {
     code: "order-mismatch",
     message: `The ${best} law fits these data better than the ${requested} law asked for (residual sum of squares ${bestSse.toPrecision(3)} against ${requestedSse.toPrecision(3)}).`,
+    rows: [],
+  };
+}
+
+/**
+ * The straight-line k and the curve-fit k disagree by more than `STRAIGHT_LINE_BIAS_SIGMAS`
+ * combined standard errors (a rule of this engine). Both come from the same data, so their
+ * difference is usually far smaller than that; a large one means the transform to the
+ * straight line has distorted the noise, typically close to the long-time limit.
+ */
+export const STRAIGHT_LINE_BIAS_SIGMAS = 3;
+
+export function checkStraightLineBias(kLine: number, seLine: number, kCurve: number, seCurve: number): Flag | null {
+  const combined = Math.hypot(seLine, seCurve);
+  if (!(Math.abs(kLine - kCurve) > STRAIGHT_LINE_BIAS_SIGMAS * combined)) return null;
+  return {
+    code: "straight-line-bias",
+    message: `The straight-line k (${kLine.toPrecision(3)}) and the curve-fit k (${kCurve.toPrecision(3)}) differ by more than their uncertainties allow: the straight-line transform magnifies the noise in some points (often near the end of the run). Prefer the curve-fit k.`,
     rows: [],
   };
 }

@@ -27,6 +27,7 @@ import {
   checkFewPoints,
   checkLowConversion,
   checkOrderMismatch,
+  checkStraightLineBias,
   checkTimeOrder,
   checkUnitSlip,
   type Flag,
@@ -224,6 +225,7 @@ export function runFit(request: FitRequest): FitResult {
   push(checkLowConversion(fractionReacted, limitingReagent(feed), lastRow));
   const curvature = curvatureFlag(fit, order);
   push(curvature);
+  if (line) push(checkStraightLineBias(line.slope, line.slopeStdErr, nonlinear.k, nonlinear.kStdErr));
 
   let orderComparison: FitResult["orderComparison"];
   if (request.options?.compareOrders ?? true) {

@@ -1,0 +1,71 @@
+// The fit command end to end: spawns `npx tsx scripts/fit.ts` with a request on stdin.
+// (Test-only use of node:child_process; nothing in the engine imports node modules.)
+
+import { describe, expect, it } from "vitest";
+import { spawnSync } from "node:child_process";
+import { exactRun, normalSource, withNoise } from "./synthetic.ts";
+
+const root = new URL("../../../", import.meta.url).pathname;
+
+function runCommand(stdin: string) {
+  const res = spawnSync("npx", ["tsx", "scripts/fit.ts"], { cwd: root, input: stdin, encoding: "utf8", timeout: 60000 });
+  return { status: res.status, out: res.stdout, err: res.stderr };
+}
+
+describe("npm run fit (scripts/fit.ts)", () => {
+  it("writes the result for a valid request and exits 0", () => {
+    // seeded synthetic data, A + 2B with equal feeds, known k = 0.11 L/(mol s); times in minutes
+    const feed = { CA0: 0.02, CB0: 0.02, nu: 2 };
+    const run = exactRun("second-order-AB", feed, 0.11, 1200, 13);
+    const values = withNoise(run.CA, 2e-5, normalSource(3));
+    const request = {
+      reaction: { a: 1, b: 2, orderA: 1, orderB: 1 },
+      feed: { CA0: 0.02, CB0: 0.02 },
+      units: { time: "min", concentration: "mol/L" },
+      measurement: { kind: "concentrationA" },
+      points: run.t.map((t, i) => [t / 60, values[i]]),
+      temperatureC: 25,
+      reference: { k: 0.11, TrefC: 25, EaKJ: 45, tolerancePct: 10 },
+    };
+    const { status, out } = runCommand(JSON.stringify(request));
+    expect(status).toBe(0);
+    const result = JSON.parse(out);
+    expect(result.model).toBe("second-order-AB-unequal");
+    expect(result.kUnit).toBe("L/(mol*s)");
+    expect(Math.abs(result.k - 0.11) / 0.11).toBeLessThan(0.05);
+    expect(result.kStdErr).toBeGreaterThan(0);
+    expect(result.kCI95).toHaveLength(2);
+    expect(result.r2).toBeGreaterThan(0.99);
+    expect(result.n).toBe(13);
+    expect(Math.abs(result.nonlinear.k - 0.11) / 0.11).toBeLessThan(0.05);
+    expect(result.nonlinear.kStdErr).toBeGreaterThan(0);
+    expect(Array.isArray(result.flags)).toBe(true);
+    expect(result.reference.kAtT).toBe(0.11);
+    expect(typeof result.reference.deviationPct).toBe("number");
+    expect(result.reference.withinTolerance).toBe(true);
+  }, 60000);
+
+  it("exits 2 with every error and its path for an invalid request", () => {
+    const request = {
+      reaction: { a: 1, b: 1, orderA: 1, orderB: 1 },
+      feed: { CA0: 0, CB0: 0.02 },
+      units: { time: "min", concentration: "mol/L" },
+      measurement: { kind: "signal" },
+      points: [
+        [0, 2.4],
+        [5, "x"],
+      ],
+    };
+    const { status, out } = runCommand(JSON.stringify(request));
+    expect(status).toBe(2);
+    const { errors } = JSON.parse(out);
+    expect(errors.map((e: { path: string }) => e.path).sort()).toEqual(["feed.CA0", "measurement.S0", "points", "points[1][1]"]);
+    for (const e of errors) expect(e.message.length).toBeGreaterThan(5);
+  }, 60000);
+
+  it("exits 2 for text that is not JSON", () => {
+    const { status, out } = runCommand("{ not json");
+    expect(status).toBe(2);
+    expect(JSON.parse(out).errors[0].message).toMatch(/not valid JSON/);
+  }, 60000);
+});
