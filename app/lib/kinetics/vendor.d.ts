@@ -1,4 +1,4 @@
-// Types for the parts of untyped packages the engine and its tests use.
+// Types for the parts of the untyped jstat package that the engine uses.
 
 declare module "jstat" {
   interface JStat {
@@ -13,21 +13,4 @@ declare module "jstat" {
   }
   const jStat: JStat;
   export default jStat;
-}
-
-declare module "odex" {
-  export class Solver {
-    constructor(n: number);
-    absoluteTolerance: number | number[];
-    relativeTolerance: number | number[];
-    maxSteps: number;
-    denseOutput: boolean;
-    solve(
-      f: (x: number, y: number[]) => number[],
-      x0: number,
-      y0: number[],
-      xEnd: number,
-      out?: (n: number, xOld: number, x: number, y: number[]) => boolean | void,
-    ): { y: number[]; outcome: number; nStep: number; xEnd: number };
-  }
 }
