@@ -39,18 +39,21 @@ export function checkFewPoints(n: number): Flag | null {
 }
 
 /** Negative times, times that repeat an earlier one, and times earlier than the row before. */
-export function checkTimeOrder(times: readonly number[]): Flag | null {
+export function checkTimeOrder(times: ArrayLike<number>): Flag | null {
+  let clean = true;
+  for (let i = 0; i < times.length && clean; i++) clean = times[i] >= 0 && (i === 0 || times[i] > times[i - 1]);
+  if (clean) return null; // strictly increasing from zero or later: nothing to report
   const negative: number[] = [];
   const repeated: number[] = [];
   const decreasing: number[] = [];
   const seen = new Set<number>();
-  times.forEach((t, i) => {
+  for (let i = 0; i < times.length; i++) {
+    const t = times[i];
     if (t < 0) negative.push(i);
     if (seen.has(t)) repeated.push(i);
     seen.add(t);
     if (i > 0 && t < times[i - 1]) decreasing.push(i);
-  });
-  if (negative.length + repeated.length + decreasing.length === 0) return null;
+  }
   const parts: string[] = [];
   if (negative.length) parts.push(`${negative.length} negative`);
   if (repeated.length) parts.push(`${repeated.length} repeating an earlier time`);
@@ -114,7 +117,7 @@ function formatRatio(r: number): string {
  * curve bends away from the data: wrong order, wrong Sinf, drift or a temperature change.
  * `rowsInTimeOrder[i]` is the row of `residualsInTimeOrder[i]`.
  */
-export function checkCurvature(residualsInTimeOrder: readonly number[], rowsInTimeOrder: readonly number[]): Flag | null {
+export function checkCurvature(residualsInTimeOrder: ArrayLike<number>, rowsInTimeOrder: ArrayLike<number>): Flag | null {
   if (residualsInTimeOrder.length < CURVATURE_MIN_POINTS) return null;
   const test = runsTest(residualsInTimeOrder);
   if (!test || !(test.pLow < CURVATURE_P)) return null;

@@ -3,13 +3,14 @@
 // the Jacobian. Optionally fits the final signal Sinf as a second parameter.
 //
 // The search is ml-levenberg-marquardt with an analytic Jacobian. Its dense-matrix steps cost
-// about 1 us per point, so it runs on at most SEARCH_POINTS points spread over the record; the
-// full-data optimum is then reached with Gauss-Newton steps computed in the same pass as the
-// standard errors (quadratic convergence from the nearby start). If those steps stall, the
-// library is run on the full data instead.
+// about 1 us per point, so it runs on at most SEARCH_POINTS points spread over the record. The
+// full-data optimum is then reached in one dimension: Sinf enters the model linearly, so for any
+// k its best value follows in closed form (variable projection), and k is refined with
+// Gauss-Newton steps accelerated by the secant of the gradient, which converges fast even when
+// the residuals are large (a rate law that does not fit, in the order comparison).
 
 import { levenbergMarquardt } from "ml-levenberg-marquardt";
-import { concentrationA, concentrationASensitivity, maxReactedA, type Feed, type RateLaw } from "./rateLaws.ts";
+import { concentrationA, concentrationASensitivity, maxReactedA, sensitivityGivenCA, type Feed, type RateLaw } from "./rateLaws.ts";
 import type { AffineMap } from "./measurement.ts";
 import { confidenceInterval } from "./statistics.ts";
 
@@ -44,9 +45,10 @@ export interface NonlinearFit {
 
 const SEARCH_POINTS = 64;
 const SEARCH_ITERATIONS = 3;
-const MAX_POLISH_STEPS = 10;
+const MAX_POLISH_STEPS = 60;
 const RELATIVE_STEP_TOLERANCE = 1e-10;
-const STDERR_STEP_TOLERANCE = 1e-6;
+const STDERR_STEP_TOLERANCE = 1e-4;
+const ROUNDING_FLOOR = 1e-2;
 
 /** Fit k (and Sinf when `problem.map` is absent). A positive `kGuess` seeds the search, else a grid is used. */
 export function fitNonlinear(problem: NonlinearProblem, kGuess?: number): NonlinearFit {
@@ -56,14 +58,15 @@ export function fitNonlinear(problem: NonlinearProblem, kGuess?: number): Nonlin
 
   const sample = strided(problem, Math.max(1, Math.ceil(problem.t.length / SEARCH_POINTS)));
   let lm = searchWithLibrary(sample, start, SEARCH_ITERATIONS);
-  let polished = polish(problem, lm.k, lm.span);
+  let polished = polish(problem, lm.k);
   let iterations = lm.iterations + polished.steps;
   if (!polished.converged) {
-    lm = searchWithLibrary(problem, { k: polished.k, span: polished.span }, 6 * SEARCH_ITERATIONS);
-    polished = polish(problem, lm.k, lm.span);
+    // a poor start: let the library search longer on the sample, then refine again
+    lm = searchWithLibrary(sample, { k: polished.k, span: profile(problem, polished.k).span }, 10 * SEARCH_ITERATIONS);
+    polished = polish(problem, lm.k);
     iterations += lm.iterations + polished.steps;
   }
-  return finish(problem, polished, iterations);
+  return finish(problem, polished.k, iterations, polished.converged);
 }
 
 /** Levenberg-Marquardt (library) in scaled parameters, so its fixed damping suits every data set. */
@@ -112,132 +115,157 @@ function searchWithLibrary(
   return { k: p[0] * kScale, span: map ? 0 : p[1] * spanScale, iterations: r.iterations };
 }
 
-interface Pass {
+interface Profile {
+  /** residual sum of squares at k, with the span Sinf - S0 at its best value for that k */
   sse: number;
-  /** J'J entries for (k, span) and J'r */
-  jkk: number;
-  jks: number;
-  jss: number;
-  jkr: number;
-  jsr: number;
+  span: number;
+  /** J'r for k (half the downhill gradient of the SSE) */
+  g: number;
+  /** Gauss-Newton curvature for k, J'J with the span projected out */
+  h: number;
 }
 
-/** One pass over the data: residuals, SSE and the normal-equation sums at (k, span). */
-function pass(problem: NonlinearProblem, k: number, span: number, residuals: Float64Array): Pass {
+/** One pass over the data at k: everything needed for a step, without storing residuals. */
+function profile(problem: NonlinearProblem, k: number): Profile {
   const { law, feed, t, values, map } = problem;
+  if (map) {
+    let sse = 0;
+    let g = 0;
+    let h = 0;
+    for (let i = 0; i < t.length; i++) {
+      const c = concentrationA(law, feed, k, t[i]);
+      const r = values[i] - map.offset - map.slope * c;
+      const dk = map.slope * sensitivityGivenCA(law, feed, k, t[i], c);
+      sse += r * r;
+      g += dk * r;
+      h += dk * dk;
+    }
+    return { sse, span: 0, g, h };
+  }
+  // Signal S = S0 + span f, f = (CA0 - CA)/reach: sums from which the best span, the SSE and
+  // the k-derivatives at that span all follow.
   const reach = maxReactedA(feed);
   const S0 = problem.S0 ?? 0;
+  let sff = 0;
+  let sfy = 0;
+  let syy = 0;
+  let sdy = 0;
+  let sdf = 0;
+  let sdd = 0;
+  for (let i = 0; i < t.length; i++) {
+    const c = concentrationA(law, feed, k, t[i]);
+    const f = (feed.CA0 - c) / reach;
+    const d = sensitivityGivenCA(law, feed, k, t[i], c);
+    const y = values[i] - S0;
+    sff += f * f;
+    sfy += f * y;
+    syy += y * y;
+    sdy += d * y;
+    sdf += d * f;
+    sdd += d * d;
+  }
+  const span = sff > 0 ? sfy / sff : 0;
+  const c = -span / reach; // dS/dk = c * dCA/dk
+  const jkk = c * c * sdd;
+  const jks = c * sdf;
+  return {
+    sse: Math.max(0, syy - span * sfy),
+    span,
+    g: c * (sdy - span * sdf),
+    h: jkk - (sff > 0 ? (jks * jks) / sff : 0),
+  };
+}
+
+/** Refines k on the full data; returns the last accepted k and whether the step left is negligible. */
+function polish(problem: NonlinearProblem, k: number): { k: number; steps: number; converged: boolean } {
+  const dof = problem.t.length - (problem.map ? 1 : 2);
+  let current = profile(problem, k);
+  let previous: { k: number; g: number } | null = null;
+  for (let step = 0; step < MAX_POLISH_STEPS; step++) {
+    const gaussNewton = current.g / current.h;
+    if (!Number.isFinite(gaussNewton)) return { k, steps: step, converged: false };
+    let delta = gaussNewton;
+    if (previous) {
+      // the secant of g estimates the full curvature, residual terms included
+      const slope = (current.g - previous.g) / (k - previous.k);
+      const secant = -current.g / slope;
+      if (slope < 0 && Math.abs(secant) <= 4 * Math.abs(gaussNewton)) delta = secant;
+    }
+    // Done when the step left is negligible against k itself or against its standard error.
+    const stdErr = Math.sqrt(current.sse / dof / current.h);
+    if (Math.abs(delta) <= Math.max(RELATIVE_STEP_TOLERANCE * k, STDERR_STEP_TOLERANCE * stdErr)) {
+      return { k, steps: step, converged: true };
+    }
+    let accepted = false;
+    for (let halving = 0, scale = 1; halving < 20 && !accepted; halving++, scale /= 2) {
+      const kNew = k + scale * delta;
+      if (!(kNew > 0)) continue;
+      const next = profile(problem, kNew);
+      if (next.sse < current.sse) {
+        previous = { k, g: current.g };
+        k = kNew;
+        current = next;
+        accepted = true;
+      }
+    }
+    // No step lowers the SSE any more: on a long record the gradient is then rounding noise.
+    // That is the optimum if what is left is far below the statistical uncertainty.
+    if (!accepted) return { k, steps: step, converged: Math.abs(delta) <= ROUNDING_FLOOR * stdErr };
+  }
+  return { k, steps: MAX_POLISH_STEPS, converged: false };
+}
+
+/** Residuals, SSE and standard errors from the covariance s^2 (J'J)^-1 at the optimum. */
+function finish(problem: NonlinearProblem, k: number, iterations: number, converged: boolean): NonlinearFit {
+  const { law, feed, t, values, map } = problem;
+  const n = t.length;
+  const reach = maxReactedA(feed);
+  const S0 = problem.S0 ?? 0;
+  const span = map ? 0 : profile(problem, k).span;
+  const residuals = new Array<number>(n);
   let sse = 0;
   let jkk = 0;
   let jks = 0;
   let jss = 0;
-  let jkr = 0;
-  let jsr = 0;
-  for (let i = 0; i < t.length; i++) {
+  for (let i = 0; i < n; i++) {
     const c = concentrationA(law, feed, k, t[i]);
-    const dc = concentrationASensitivity(law, feed, k, t[i]);
-    let predicted: number;
+    const dc = sensitivityGivenCA(law, feed, k, t[i], c);
+    let r: number;
     let dk: number;
     let ds = 0;
     if (map) {
-      predicted = map.offset + map.slope * c;
+      r = values[i] - map.offset - map.slope * c;
       dk = map.slope * dc;
     } else {
       ds = (feed.CA0 - c) / reach;
-      predicted = S0 + span * ds;
+      r = values[i] - S0 - span * ds;
       dk = (-span / reach) * dc;
     }
-    const r = values[i] - predicted;
     residuals[i] = r;
     sse += r * r;
     jkk += dk * dk;
     jks += dk * ds;
     jss += ds * ds;
-    jkr += dk * r;
-    jsr += ds * r;
   }
-  return { sse, jkk, jks, jss, jkr, jsr };
-}
-
-interface Polished {
-  k: number;
-  span: number;
-  steps: number;
-  converged: boolean;
-  at: Pass;
-  residuals: Float64Array;
-}
-
-/** Gauss-Newton steps on the full data, halving a step that does not lower the SSE. */
-function polish(problem: NonlinearProblem, k: number, span: number): Polished {
-  const free = problem.map === undefined;
-  let residuals = new Float64Array(problem.t.length);
-  let scratch = new Float64Array(problem.t.length);
-  let current = pass(problem, k, span, residuals);
-  for (let step = 0; step < MAX_POLISH_STEPS; step++) {
-    let dk: number;
-    let ds = 0;
-    if (free) {
-      const det = current.jkk * current.jss - current.jks * current.jks;
-      dk = (current.jss * current.jkr - current.jks * current.jsr) / det;
-      ds = (current.jkk * current.jsr - current.jks * current.jkr) / det;
-    } else {
-      dk = current.jkr / current.jkk;
-    }
-    if (!Number.isFinite(dk) || !Number.isFinite(ds)) break;
-    // Done when the step left is negligible against k itself or against its standard error
-    // (below that, SSE changes are lost in rounding and cannot confirm a step).
-    const se = standardErrors(current, problem.t.length, free);
-    if (
-      Math.abs(dk) <= Math.max(RELATIVE_STEP_TOLERANCE * k, STDERR_STEP_TOLERANCE * se.k) &&
-      Math.abs(ds) <= Math.max(RELATIVE_STEP_TOLERANCE * Math.abs(span), STDERR_STEP_TOLERANCE * se.span)
-    ) {
-      return { k, span, steps: step, converged: true, at: current, residuals };
-    }
-    let accepted = false;
-    for (let halving = 0, scale = 1; halving < 30 && !accepted; halving++, scale /= 2) {
-      const kNew = k + scale * dk;
-      if (!(kNew > 0)) continue;
-      const next = pass(problem, kNew, span + scale * ds, scratch);
-      if (next.sse <= current.sse) {
-        k = kNew;
-        span += scale * ds;
-        current = next;
-        [residuals, scratch] = [scratch, residuals];
-        accepted = true;
-      }
-    }
-    if (!accepted) break;
-  }
-  return { k, span, steps: MAX_POLISH_STEPS, converged: false, at: current, residuals };
-}
-
-/** Standard errors of k and span from the covariance s^2 (J'J)^-1. */
-function standardErrors(at: Pass, n: number, free: boolean): { k: number; span: number; dof: number } {
-  const dof = n - (free ? 2 : 1);
-  const variance = dof > 0 ? at.sse / dof : NaN;
-  if (!free) return { k: Math.sqrt(variance / at.jkk), span: 0, dof };
-  const det = at.jkk * at.jss - at.jks * at.jks;
-  return { k: Math.sqrt((variance * at.jss) / det), span: Math.sqrt((variance * at.jkk) / det), dof };
-}
-
-function finish(problem: NonlinearProblem, p: Polished, iterations: number): NonlinearFit {
-  const free = problem.map === undefined;
-  const se = standardErrors(p.at, problem.t.length, free);
+  const dof = n - (map ? 1 : 2);
+  const variance = dof > 0 ? sse / dof : NaN;
+  const det = jkk * jss - jks * jks;
+  const kStdErr = Math.sqrt(map ? variance / jkk : (variance * jss) / det);
   const fit: NonlinearFit = {
-    k: p.k,
-    kStdErr: se.k,
-    kCI95: confidenceInterval(p.k, se.k, se.dof),
-    sse: p.at.sse,
-    residualStdDev: Math.sqrt(se.dof > 0 ? p.at.sse / se.dof : NaN),
-    dof: se.dof,
-    residuals: Array.from(p.residuals),
+    k,
+    kStdErr,
+    kCI95: confidenceInterval(k, kStdErr, dof),
+    sse,
+    residualStdDev: Math.sqrt(variance),
+    dof,
+    residuals,
     iterations,
-    converged: p.converged,
+    converged,
   };
-  if (free) {
-    const value = (problem.S0 ?? 0) + p.span;
-    fit.Sinf = { value, stdErr: se.span, ci95: confidenceInterval(value, se.span, se.dof) };
+  if (!map) {
+    const value = S0 + span;
+    const stdErr = Math.sqrt((variance * jkk) / det);
+    fit.Sinf = { value, stdErr, ci95: confidenceInterval(value, stdErr, dof) };
   }
   return fit;
 }

@@ -92,27 +92,29 @@ export function concentrationA(law: RateLaw, feed: Feed, k: number, t: number): 
 
 /** dCA/dk of the closed form, for the Jacobian of the nonlinear fit. */
 export function concentrationASensitivity(law: RateLaw, feed: Feed, k: number, t: number): number {
+  return sensitivityGivenCA(law, feed, k, t, concentrationA(law, feed, k, t));
+}
+
+/**
+ * dCA/dk when CA(t) is already known (saves the transcendental functions in fitting loops).
+ * A-B law: with Den = CA0/CA = 1 + CB0 k t phi(x), x = D k t, dDen/dk = CB0 t e^x, so
+ * dCA/dk = -CB0 t e^x CA^2 / CA0.
+ */
+export function sensitivityGivenCA(law: RateLaw, feed: Feed, k: number, t: number, CA: number): number {
   switch (law) {
     case "first-order":
-      return -t * concentrationA(law, feed, k, t);
-    case "second-order-A": {
-      const c = concentrationA(law, feed, k, t);
-      return -t * c * c;
-    }
+      return -t * CA;
+    case "second-order-A":
+      return -t * CA * CA;
     case "second-order-AB": {
-      // With Den = 1 + CB0 k t phi(x), x = D k t: dDen/dk = CB0 t e^x, dCA/dk = -CA0 CB0 t e^x / Den^2.
       const { CA0, CB0 } = feed;
+      const x = excessOfB(feed) * k * t;
+      if (x <= 0) return (-CB0 * t * Math.exp(x) * CA * CA) / CA0;
+      // e^x CA^2 = CA0^2 / (Den * Den e^-x); Den e^-x stays finite for large x
       const kt = k * t;
-      const x = excessOfB(feed) * kt;
-      const den = 1 + CB0 * kt * expm1OverX(x);
-      let g: number;
-      if (x <= 0) g = Math.exp(x) / (den * den);
-      else {
-        // e^x / Den^2 = 1 / (Den * Den e^-x), which does not overflow for large x.
-        const denScaled = Math.exp(-x) + CB0 * kt * (-Math.expm1(-x) / x);
-        g = 1 / (den * denScaled);
-      }
-      return -CA0 * CB0 * t * g;
+      const den = CA0 / CA;
+      const denScaled = Math.exp(-x) + CB0 * kt * (-Math.expm1(-x) / x);
+      return (-CB0 * t * CA0) / (den * denScaled);
     }
   }
 }

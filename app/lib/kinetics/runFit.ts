@@ -122,7 +122,6 @@ interface RunData {
 interface LawFit {
   law: RateLaw;
   map: AffineMap;
-  CA: Float64Array;
   line: LineFit | null;
   lineRows: number[];
   beyondRows: number[];
@@ -147,10 +146,15 @@ function toSI(request: FitRequest): RunData {
   return { feed, measurement: request.measurement, t, values };
 }
 
-/** Straight-line and nonlinear fits of one rate law. */
-function fitLaw(law: RateLaw, data: RunData, throughOrigin: boolean): LawFit {
+// For the other laws in the order comparison the straight line only seeds the nonlinear fit,
+// so on long records it is drawn through every stride-th point.
+const SEED_LINE_POINTS = 2000;
+
+/** Straight-line and nonlinear fits of one rate law (`seedOnly`: the line just seeds the curve fit). */
+function fitLaw(law: RateLaw, data: RunData, throughOrigin: boolean, seedOnly = false): LawFit {
   const { feed, measurement, t, values } = data;
   const n = t.length;
+  const stride = seedOnly ? Math.max(1, Math.floor(n / SEED_LINE_POINTS)) : 1;
   let nonlinear: NonlinearFit | null = null;
   let map: AffineMap;
   if (measurement.kind === "signal" && measurement.Sinf === undefined) {
@@ -160,37 +164,47 @@ function fitLaw(law: RateLaw, data: RunData, throughOrigin: boolean): LawFit {
   } else {
     map = measurementMap(measurement, feed);
   }
-  const CA = new Float64Array(n);
   const end = finalCA(feed);
   const lineRows: number[] = [];
   const beyondRows: number[] = [];
-  const lineT: number[] = [];
-  const lineYs: number[] = [];
-  for (let i = 0; i < n; i++) {
-    CA[i] = toCA(map, values[i]);
-    const y = lineY(law, feed, CA[i]);
-    if (CA[i] <= end || !Number.isFinite(y)) {
+  const lineT = new Float64Array(n);
+  const lineYs = new Float64Array(n);
+  let used = 0;
+  for (let i = 0; i < n; i += stride) {
+    const CA = toCA(map, values[i]);
+    const y = lineY(law, feed, CA);
+    if (CA <= end || !Number.isFinite(y)) {
       beyondRows.push(i);
       continue;
     }
     lineRows.push(i);
-    lineT.push(t[i]);
-    lineYs.push(y);
+    lineT[used] = t[i];
+    lineYs[used] = y;
+    used++;
   }
-  const line = lineRows.length >= 2 ? fitLine(lineT, lineYs, throughOrigin) : null;
+  const line = used >= 2 ? fitLine(lineT.subarray(0, used), lineYs.subarray(0, used), throughOrigin) : null;
   if (!nonlinear) nonlinear = fitNonlinear({ law, feed, t, values, map }, line?.slope);
-  return { law, map, CA, line, lineRows, beyondRows, nonlinear };
+  return { law, map, line, lineRows, beyondRows, nonlinear };
 }
 
-function timeOrder(t: Float64Array): number[] {
-  return Array.from(t.keys()).sort((i, j) => t[i] - t[j] || i - j);
+/** Row indices in time order; the identity when the rows already are (the usual case). */
+function timeOrder(t: Float64Array): ArrayLike<number> {
+  const n = t.length;
+  const order = new Int32Array(n);
+  let sorted = true;
+  for (let i = 0; i < n; i++) {
+    order[i] = i;
+    if (i > 0 && t[i] < t[i - 1]) sorted = false;
+  }
+  if (!sorted) order.sort((i, j) => t[i] - t[j] || i - j);
+  return order;
 }
 
-function curvatureFlag(fit: LawFit, order: number[]): Flag | null {
-  return checkCurvature(
-    order.map((i) => fit.nonlinear.residuals[i]),
-    order,
-  );
+function curvatureFlag(fit: LawFit, order: ArrayLike<number>): Flag | null {
+  const r = fit.nonlinear.residuals;
+  const inOrder = new Float64Array(order.length);
+  for (let i = 0; i < order.length; i++) inOrder[i] = r[order[i]];
+  return checkCurvature(inOrder, order);
 }
 
 export function runFit(request: FitRequest): FitResult {
@@ -217,7 +231,7 @@ export function runFit(request: FitRequest): FitResult {
     if (f) flags.push(f);
   };
   push(checkFewPoints(n));
-  push(checkTimeOrder(Array.from(request.points, (p) => p[0])));
+  push(checkTimeOrder(data.t));
   const end = finalCA(feed);
   push(checkBeyondAsymptote(fit.beyondRows, `CA = ${formatNumber(end / cs)} ${request.units.concentration}`));
   const tLast = data.t[lastRow];
@@ -232,7 +246,7 @@ export function runFit(request: FitRequest): FitResult {
     const laws: LawComparison[] = [];
     let best = { model, sse: nonlinear.sse };
     for (const other of RATE_LAWS) {
-      const f = other === law ? fit : fitLaw(other, data, throughOrigin);
+      const f = other === law ? fit : fitLaw(other, data, throughOrigin, true);
       const entry: LawComparison = {
         model: modelName(other, feed),
         k: f.nonlinear.k,

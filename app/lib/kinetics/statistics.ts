@@ -35,24 +35,27 @@ export function runsTest(residuals: ArrayLike<number>): RunsTest | null {
   let nNeg = 0;
   let runs = 0;
   let prev = 0;
-  let start = -1;
-  let bestStart = 0;
+  let start = -1; // index where the current run began
+  let length = 0;
+  let bestStart = -1;
+  let bestLength = 0;
   let bestEnd = -1;
-  const idx: number[] = [];
   for (let i = 0; i < residuals.length; i++) {
     const s = Math.sign(residuals[i]);
     if (s === 0 || Number.isNaN(s)) continue;
-    idx.push(i);
     if (s > 0) nPos++;
     else nNeg++;
     if (s !== prev) {
       runs++;
-      start = idx.length - 1;
+      start = i;
+      length = 0;
       prev = s;
     }
-    if (idx.length - 1 - start > bestEnd - bestStart) {
+    length++;
+    if (length > bestLength) {
+      bestLength = length;
       bestStart = start;
-      bestEnd = idx.length - 1;
+      bestEnd = i;
     }
   }
   if (nPos < 2 || nNeg < 2) return null;
@@ -60,11 +63,7 @@ export function runsTest(residuals: ArrayLike<number>): RunsTest | null {
   const expected = (2 * nPos * nNeg) / n + 1;
   const variance = ((expected - 1) * (expected - 2)) / (n - 1);
   const z = (runs - expected) / Math.sqrt(variance);
-  return {
-    runs,
-    expected,
-    z,
-    pLow: jStat.normal.cdf(z, 0, 1),
-    longestRun: idx.slice(bestStart, bestEnd + 1),
-  };
+  const longestRun: number[] = [];
+  for (let i = bestStart; i <= bestEnd; i++) if (residuals[i] !== 0) longestRun.push(i);
+  return { runs, expected, z, pLow: jStat.normal.cdf(z, 0, 1), longestRun };
 }

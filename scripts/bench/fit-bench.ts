@@ -1,0 +1,94 @@
+// Benchmark of the kinetics engine on seeded synthetic runs (known k). Prints its figures and
+// exits 1 if a target is missed:
+//   - 1,000 data sets of 200 points, full fit each (straight line, nonlinear fit, diagnostics,
+//     order comparison): at least 1,000 data sets per second on one core;
+//   - one 100,000-point logger record (validation + full fit): under 0.3 s.
+// Usage: npx tsx scripts/bench/fit-bench.ts
+
+import { runFit, validateFitRequest, type FitRequest } from "../../app/lib/kinetics/index.ts";
+import { exactRun, normalSource, withNoise } from "../../app/lib/kinetics/synthetic.ts";
+import type { Feed, RateLaw } from "../../app/lib/kinetics/rateLaws.ts";
+
+const DATASETS = 1000;
+const POINTS = 200;
+const LOGGER_POINTS = 100_000;
+const TARGET_PER_SECOND = 1000;
+const TARGET_LOGGER_S = 0.3;
+
+const ORDERS: Record<RateLaw, [number, number]> = {
+  "first-order": [1, 0],
+  "second-order-A": [2, 0],
+  "second-order-AB": [1, 1],
+};
+
+/** A mix of laws and measured quantities, as a class would hand in. */
+function makeRequest(i: number, points: number, normal: () => number): FitRequest {
+  const law = (["second-order-AB", "first-order", "second-order-A"] as const)[i % 3];
+  const feed: Feed = { CA0: 0.02, CB0: [0.03, 0.02, 0.05][i % 3], nu: 1 + (i % 2) };
+  const k = law === "first-order" ? 1.2e-3 : 0.11;
+  const run = exactRun(law, feed, k, 2400, points);
+  const signal = i % 4 === 3;
+  const measurement: FitRequest["measurement"] = signal ? { kind: "signal", S0: 2.4, Sinf: 0.9 } : { kind: "concentrationA" };
+  const reach = Math.min(feed.CA0, feed.CB0 / feed.nu);
+  const clean = signal ? run.CA.map((c) => 2.4 - (1.5 * (feed.CA0 - c)) / reach) : run.CA.map((c) => c * 1000);
+  const values = withNoise(clean, signal ? 2e-3 : 0.02, normal);
+  const [orderA, orderB] = ORDERS[law];
+  return {
+    reaction: { a: 1, b: feed.nu, orderA, orderB },
+    feed: { CA0: feed.CA0 * 1000, CB0: feed.CB0 * 1000 },
+    units: { time: "s", concentration: "mmol/L" },
+    measurement,
+    points: run.t.map((t, j) => [t, values[j]]),
+    temperatureC: 25,
+    reference: { k, TrefC: 25, EaKJ: 48, tolerancePct: 20 },
+  };
+}
+
+function timeBatch(requests: FitRequest[]): number {
+  const t0 = performance.now();
+  let sink = 0;
+  for (const r of requests) sink += runFit(r).k;
+  const seconds = (performance.now() - t0) / 1000;
+  if (!Number.isFinite(sink)) throw new Error("a fit returned no k");
+  return seconds;
+}
+
+const normal = normalSource(12345);
+const warm = Array.from({ length: 100 }, (_, i) => makeRequest(i, POINTS, normal));
+timeBatch(warm); // let the JIT settle before measuring
+
+const batch = Array.from({ length: DATASETS }, (_, i) => makeRequest(i, POINTS, normal));
+const withComparison = timeBatch(batch);
+const withoutComparison = timeBatch(batch.map((r) => ({ ...r, options: { compareOrders: false } })));
+const rate = DATASETS / withComparison;
+
+const logger = makeRequest(3, LOGGER_POINTS, normal); // conductivity-like signal, A + 2B
+const loggerJson = JSON.stringify(logger);
+const t0 = performance.now();
+const checked = validateFitRequest(JSON.parse(loggerJson));
+if (!checked.ok) throw new Error("logger request invalid");
+const loggerResult = runFit(checked.request);
+const loggerSeconds = (performance.now() - t0) / 1000;
+
+const fitSinf = makeRequest(3, LOGGER_POINTS, normal);
+fitSinf.measurement = { kind: "signal", S0: 2.4 };
+const t1 = performance.now();
+const sinfResult = runFit(fitSinf);
+const sinfSeconds = (performance.now() - t1) / 1000;
+
+console.log(`node ${process.version}, one thread`);
+console.log(
+  `${DATASETS} data sets x ${POINTS} points, full fit with order comparison: ${withComparison.toFixed(3)} s = ${rate.toFixed(0)} data sets/s (target >= ${TARGET_PER_SECOND})`,
+);
+console.log(
+  `same, without order comparison: ${withoutComparison.toFixed(3)} s = ${(DATASETS / withoutComparison).toFixed(0)} data sets/s`,
+);
+console.log(
+  `${LOGGER_POINTS} point logger record (parse + validate + full fit): ${loggerSeconds.toFixed(3)} s (target < ${TARGET_LOGGER_S}); k = ${loggerResult.k.toPrecision(5)}, curve-fit k = ${loggerResult.nonlinear.k.toPrecision(5)}`,
+);
+console.log(
+  `${LOGGER_POINTS} point logger record with Sinf fitted: ${sinfSeconds.toFixed(3)} s; Sinf = ${sinfResult.nonlinear.Sinf?.value.toPrecision(5)}`,
+);
+const ok = rate >= TARGET_PER_SECOND && loggerSeconds < TARGET_LOGGER_S;
+console.log(ok ? "targets met" : "TARGET MISSED");
+process.exit(ok ? 0 : 1);
