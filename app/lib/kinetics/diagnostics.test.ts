@@ -129,4 +129,13 @@ describe("diagnostics", () => {
     // the same run stopped at 96 % of the limit is fine
     expect(codes(request("second-order-AB", 0.11, { b: 2, CB0: 0.02, tEnd: 1200, n: 13, noise: 2e-5, seed: 3 }))).toEqual([]);
   });
+
+  it("fit-not-converged: data that rise instead of fall leave no best k > 0", () => {
+    const req = request("second-order-AB", 0.11, { n: 8 });
+    req.points = req.points.map(([t], i) => [t, 0.02 + 1e-4 * i]);
+    const result = runFit(req);
+    expect(result.flags.map((f) => f.code)).toContain("fit-not-converged");
+    expect(result.k).toBeLessThan(0);
+  });
 });
+

@@ -11,7 +11,8 @@ export type FlagCode =
   | "beyond-asymptote"
   | "time-order"
   | "order-mismatch"
-  | "straight-line-bias";
+  | "straight-line-bias"
+  | "fit-not-converged";
 
 export interface Flag {
   code: FlagCode;
@@ -129,8 +130,8 @@ export function checkCurvature(residualsInTimeOrder: ArrayLike<number>, rowsInTi
 }
 
 /** Another supported rate law leaves a much smaller residual sum of squares (a rule of this engine). */
-export function checkOrderMismatch(requested: string, requestedSse: number, best: string, bestSse: number): Flag | null {
-  if (best === requested || !(requestedSse > 2 * bestSse)) return null;
+export function checkOrderMismatch(n: number, requested: string, requestedSse: number, best: string, bestSse: number): Flag | null {
+  if (n < MIN_POINTS || best === requested || !(requestedSse > 2 * bestSse)) return null;
   return {
     code: "order-mismatch",
     message: `The ${best} law fits these data better than the ${requested} law asked for (residual sum of squares ${bestSse.toPrecision(3)} against ${requestedSse.toPrecision(3)}).`,
@@ -148,10 +149,19 @@ export const STRAIGHT_LINE_BIAS_SIGMAS = 3;
 
 export function checkStraightLineBias(kLine: number, seLine: number, kCurve: number, seCurve: number): Flag | null {
   const combined = Math.hypot(seLine, seCurve);
-  if (!(Math.abs(kLine - kCurve) > STRAIGHT_LINE_BIAS_SIGMAS * combined)) return null;
+  if (!(combined > 0) || !(Math.abs(kLine - kCurve) > STRAIGHT_LINE_BIAS_SIGMAS * combined)) return null;
   return {
     code: "straight-line-bias",
     message: `The straight-line k (${kLine.toPrecision(3)}) and the curve-fit k (${kCurve.toPrecision(3)}) differ by more than their uncertainties allow: the straight-line transform magnifies the noise in some points (often near the end of the run). Prefer the curve-fit k.`,
+    rows: [],
+  };
+}
+
+export function checkConverged(converged: boolean): Flag | null {
+  if (converged) return null;
+  return {
+    code: "fit-not-converged",
+    message: "The curve fit did not settle on a best k (the data may show no reaction, or too little of it); its k and uncertainty are not reliable.",
     rows: [],
   };
 }

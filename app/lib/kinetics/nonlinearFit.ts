@@ -60,7 +60,7 @@ export function fitNonlinear(problem: NonlinearProblem, kGuess?: number): Nonlin
   let lm = searchWithLibrary(sample, start, SEARCH_ITERATIONS);
   let polished = polish(problem, lm.k);
   let iterations = lm.iterations + polished.steps;
-  if (!polished.converged) {
+  if (!polished.converged && Number.isFinite(polished.k)) {
     // a poor start: let the library search longer on the sample, then refine again
     lm = searchWithLibrary(sample, { k: polished.k, span: profile(problem, polished.k).span }, 10 * SEARCH_ITERATIONS);
     polished = polish(problem, lm.k);
@@ -102,7 +102,9 @@ function searchWithLibrary(
       ((feed.CA0 - concentrationA(law, feed, k, ti)) / reach) * (spanScale / valueScale),
     ];
   };
-  const r = levenbergMarquardt({ x: t, y }, model, {
+  let r: ReturnType<typeof levenbergMarquardt>;
+  try {
+    r = levenbergMarquardt({ x: t, y }, model, {
     initialValues: map ? [1] : [1, start.span / spanScale],
     jacobianFunction: jacobian,
     maxIterations,
@@ -110,7 +112,12 @@ function searchWithLibrary(
     damping: 1e-3,
     minValues: map ? [0] : [0, -Number.MAX_VALUE],
     maxValues: map ? [Number.MAX_VALUE] : [Number.MAX_VALUE, Number.MAX_VALUE],
-  });
+    });
+  } catch {
+    // degenerate data (e.g. no change at all) can make the library's linear algebra fail:
+    // keep the start and let the caller report that the fit did not converge
+    return { k: start.k, span: start.span, iterations: 0 };
+  }
   const p = r.parameterValues;
   return { k: p[0] * kScale, span: map ? 0 : p[1] * spanScale, iterations: r.iterations };
 }

@@ -8,6 +8,7 @@ import {
   lineY,
   modelName,
   textbookLine,
+  timeToReach,
   type Feed,
   type RateLaw,
 } from "./rateLaws.ts";
@@ -115,6 +116,20 @@ describe("closed-form CA(t) against numerical integration (odex)", () => {
     expect(Math.abs(concentrationA("second-order-AB", feed, k, t) - expected) / expected).toBeLessThan(1e-6);
     expect(finalCA(feed)).toBeCloseTo(expected, 15);
   });
+});
+
+describe("time to reach a concentration (for designing runs)", () => {
+  for (const law of RATE_LAWS) {
+    it(`${law}: inverts the odex solution to 1e-8`, () => {
+      const k = law === "first-order" ? 1e-3 : 0.1;
+      for (const feed of [FEEDS[1], FEEDS[11], FEEDS[20]]) {
+        for (const t of [30, 600, 3000]) {
+          const CA = integrate(law, feed, k, t).CA;
+          expect(Math.abs(timeToReach(law, feed, k, CA) - t) / t).toBeLessThan(1e-8);
+        }
+      }
+    });
+  }
 });
 
 describe("textbook integrated forms for bimolecular second-order reactions", () => {

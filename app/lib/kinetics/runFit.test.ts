@@ -175,6 +175,14 @@ describe("order comparison", () => {
     });
   }
 
+  it("without B in the feed (A -> products) only the laws in A alone are compared", () => {
+    const req = syntheticRequest({ law: "first-order", k: 2e-3, b: 0, CB0: 0 });
+    req.feed = { CA0: 0.02 };
+    const result = runFit(req);
+    expect(result.orderComparison!.laws.map((l) => l.model)).toEqual(["first-order", "second-order-A"]);
+    expect(result.k / 2e-3).toBeCloseTo(1, 9);
+  });
+
   it("can be switched off", () => {
     const req = syntheticRequest({ law: "second-order-A", k: 0.1 });
     req.options = { compareOrders: false };

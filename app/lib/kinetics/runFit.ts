@@ -23,6 +23,7 @@ import { fitNonlinear, type NonlinearFit } from "./nonlinearFit.ts";
 import { rateConstantAt } from "./arrhenius.ts";
 import {
   checkBeyondAsymptote,
+  checkConverged,
   checkCurvature,
   checkFewPoints,
   checkLowConversion,
@@ -239,13 +240,16 @@ export function runFit(request: FitRequest): FitResult {
   push(checkLowConversion(fractionReacted, limitingReagent(feed), lastRow));
   const curvature = curvatureFlag(fit, order);
   push(curvature);
+  push(checkConverged(nonlinear.converged));
   if (line) push(checkStraightLineBias(line.slope, line.slopeStdErr, nonlinear.k, nonlinear.kStdErr));
 
   let orderComparison: FitResult["orderComparison"];
   if (request.options?.compareOrders ?? true) {
     const laws: LawComparison[] = [];
     let best = { model, sse: nonlinear.sse };
-    for (const other of RATE_LAWS) {
+    // the A-B law needs some B; without it only the A-only laws are compared
+    const candidates = RATE_LAWS.filter((l) => l !== "second-order-AB" || feed.CB0 > 0);
+    for (const other of candidates) {
       const f = other === law ? fit : fitLaw(other, data, throughOrigin, true);
       const entry: LawComparison = {
         model: modelName(other, feed),
@@ -260,7 +264,7 @@ export function runFit(request: FitRequest): FitResult {
       if (f.nonlinear.sse < best.sse) best = { model: entry.model, sse: f.nonlinear.sse };
     }
     orderComparison = { best: best.model, laws };
-    push(checkOrderMismatch(model, nonlinear.sse, best.model, best.sse));
+    push(checkOrderMismatch(n, model, nonlinear.sse, best.model, best.sse));
   }
 
   let reference: FitResult["reference"];
