@@ -64,11 +64,23 @@ const rate = DATASETS / withComparison;
 
 const logger = makeRequest(3, LOGGER_POINTS, normal); // conductivity-like signal, A + 2B
 const loggerJson = JSON.stringify(logger);
-const t0 = performance.now();
-const checked = validateFitRequest(JSON.parse(loggerJson));
-if (!checked.ok) throw new Error("logger request invalid");
-const loggerResult = runFit(checked.request);
-const loggerSeconds = (performance.now() - t0) / 1000;
+/** Parse, validate and fit the whole record, as the command does; seconds for each stage. */
+function fitLogger() {
+  const t0 = performance.now();
+  const parsed = JSON.parse(loggerJson);
+  const t1 = performance.now();
+  const checked = validateFitRequest(parsed);
+  if (!checked.ok) throw new Error("logger request invalid");
+  const t2 = performance.now();
+  const result = runFit(checked.request);
+  const t3 = performance.now();
+  return { result, parse: (t1 - t0) / 1000, validate: (t2 - t1) / 1000, fit: (t3 - t2) / 1000, total: (t3 - t0) / 1000 };
+}
+const loggerRuns = [fitLogger(), fitLogger(), fitLogger()];
+const first = loggerRuns[0];
+const loggerSeconds = first.total;
+const loggerResult = first.result;
+const median = [...loggerRuns].sort((a, b) => a.total - b.total)[1].total;
 
 const fitSinf = makeRequest(3, LOGGER_POINTS, normal);
 fitSinf.measurement = { kind: "signal", S0: 2.4 };
@@ -84,7 +96,7 @@ console.log(
   `same, without order comparison: ${withoutComparison.toFixed(3)} s = ${(DATASETS / withoutComparison).toFixed(0)} data sets/s`,
 );
 console.log(
-  `${LOGGER_POINTS} point logger record (parse + validate + full fit): ${loggerSeconds.toFixed(3)} s (target < ${TARGET_LOGGER_S}); k = ${loggerResult.k.toPrecision(5)}, curve-fit k = ${loggerResult.nonlinear.k.toPrecision(5)}`,
+  `${LOGGER_POINTS} point logger record, first call: ${loggerSeconds.toFixed(3)} s (target < ${TARGET_LOGGER_S}) = parse ${first.parse.toFixed(3)} + validate ${first.validate.toFixed(3)} + fit ${first.fit.toFixed(3)}; median of 3 calls ${median.toFixed(3)} s; k = ${loggerResult.k.toPrecision(5)}, curve-fit k = ${loggerResult.nonlinear.k.toPrecision(5)}`,
 );
 console.log(
   `${LOGGER_POINTS} point logger record with Sinf fitted: ${sinfSeconds.toFixed(3)} s; Sinf = ${sinfResult.nonlinear.Sinf?.value.toPrecision(5)}`,

@@ -60,13 +60,13 @@ export function fitNonlinear(problem: NonlinearProblem, kGuess?: number): Nonlin
   let lm = searchWithLibrary(sample, start, SEARCH_ITERATIONS);
   let polished = polish(problem, lm.k);
   let iterations = lm.iterations + polished.steps;
-  if (!polished.converged && Number.isFinite(polished.k)) {
+  if (!polished.converged && Number.isFinite(polished.at.k)) {
     // a poor start: let the library search longer on the sample, then refine again
-    lm = searchWithLibrary(sample, { k: polished.k, span: profile(problem, polished.k).span }, 10 * SEARCH_ITERATIONS);
+    lm = searchWithLibrary(sample, { k: polished.at.k, span: polished.at.span }, 10 * SEARCH_ITERATIONS);
     polished = polish(problem, lm.k);
     iterations += lm.iterations + polished.steps;
   }
-  return finish(problem, polished.k, iterations, polished.converged);
+  return finish(problem, polished.at, iterations, polished.converged);
 }
 
 /** Levenberg-Marquardt (library) in scaled parameters, so its fixed damping suits every data set. */
@@ -123,6 +123,7 @@ function searchWithLibrary(
 }
 
 interface Profile {
+  k: number;
   /** residual sum of squares at k, with the span Sinf - S0 at its best value for that k */
   sse: number;
   span: number;
@@ -130,10 +131,16 @@ interface Profile {
   g: number;
   /** Gauss-Newton curvature for k, J'J with the span projected out */
   h: number;
+  /** J'J entries for (k, span), for the covariance */
+  jkk: number;
+  jks: number;
+  jss: number;
+  /** residuals (known map), or the extent f per point (fitted Sinf: residual = y - span f) */
+  perPoint: Float64Array;
 }
 
-/** One pass over the data at k: everything needed for a step, without storing residuals. */
-function profile(problem: NonlinearProblem, k: number): Profile {
+/** One pass over the data at k: everything needed for a step and, at the optimum, for the result. */
+function profile(problem: NonlinearProblem, k: number, perPoint: Float64Array = new Float64Array(problem.t.length)): Profile {
   const { law, feed, t, values, map } = problem;
   if (map) {
     let sse = 0;
@@ -143,11 +150,12 @@ function profile(problem: NonlinearProblem, k: number): Profile {
       const c = concentrationA(law, feed, k, t[i]);
       const r = values[i] - map.offset - map.slope * c;
       const dk = map.slope * sensitivityGivenCA(law, feed, k, t[i], c);
+      perPoint[i] = r;
       sse += r * r;
       g += dk * r;
       h += dk * dk;
     }
-    return { sse, span: 0, g, h };
+    return { k, sse, span: 0, g, h, jkk: h, jks: 0, jss: 0, perPoint };
   }
   // Signal S = S0 + span f, f = (CA0 - CA)/reach: sums from which the best span, the SSE and
   // the k-derivatives at that span all follow.
@@ -164,6 +172,7 @@ function profile(problem: NonlinearProblem, k: number): Profile {
     const f = (feed.CA0 - c) / reach;
     const d = sensitivityGivenCA(law, feed, k, t[i], c);
     const y = values[i] - S0;
+    perPoint[i] = f;
     sff += f * f;
     sfy += f * y;
     syy += y * y;
@@ -176,84 +185,77 @@ function profile(problem: NonlinearProblem, k: number): Profile {
   const jkk = c * c * sdd;
   const jks = c * sdf;
   return {
+    k,
     sse: Math.max(0, syy - span * sfy),
     span,
     g: c * (sdy - span * sdf),
     h: jkk - (sff > 0 ? (jks * jks) / sff : 0),
+    jkk,
+    jks,
+    jss: sff,
+    perPoint,
   };
 }
 
-/** Refines k on the full data; returns the last accepted k and whether the step left is negligible. */
-function polish(problem: NonlinearProblem, k: number): { k: number; steps: number; converged: boolean } {
+/** Refines k on the full data; returns the profile at the last accepted k and whether the step left is negligible. */
+function polish(problem: NonlinearProblem, k: number): { at: Profile; steps: number; converged: boolean } {
   const dof = problem.t.length - (problem.map ? 1 : 2);
   let current = profile(problem, k);
+  let spare: Float64Array = new Float64Array(problem.t.length);
   let previous: { k: number; g: number } | null = null;
   for (let step = 0; step < MAX_POLISH_STEPS; step++) {
     const gaussNewton = current.g / current.h;
-    if (!Number.isFinite(gaussNewton)) return { k, steps: step, converged: false };
+    if (!Number.isFinite(gaussNewton)) return { at: current, steps: step, converged: false };
     let delta = gaussNewton;
     if (previous) {
       // the secant of g estimates the full curvature, residual terms included
-      const slope = (current.g - previous.g) / (k - previous.k);
+      const slope = (current.g - previous.g) / (current.k - previous.k);
       const secant = -current.g / slope;
       if (slope < 0 && Math.abs(secant) <= 4 * Math.abs(gaussNewton)) delta = secant;
     }
     // Done when the step left is negligible against k itself or against its standard error.
     const stdErr = Math.sqrt(current.sse / dof / current.h);
-    if (Math.abs(delta) <= Math.max(RELATIVE_STEP_TOLERANCE * k, STDERR_STEP_TOLERANCE * stdErr)) {
-      return { k, steps: step, converged: true };
+    if (Math.abs(delta) <= Math.max(RELATIVE_STEP_TOLERANCE * current.k, STDERR_STEP_TOLERANCE * stdErr)) {
+      return { at: current, steps: step, converged: true };
     }
     let accepted = false;
     for (let halving = 0, scale = 1; halving < 20 && !accepted; halving++, scale /= 2) {
-      const kNew = k + scale * delta;
+      const kNew = current.k + scale * delta;
       if (!(kNew > 0)) continue;
-      const next = profile(problem, kNew);
+      const next = profile(problem, kNew, spare);
       if (next.sse < current.sse) {
-        previous = { k, g: current.g };
-        k = kNew;
+        previous = { k: current.k, g: current.g };
+        spare = current.perPoint;
         current = next;
         accepted = true;
       }
     }
     // No step lowers the SSE any more: on a long record the gradient is then rounding noise.
     // That is the optimum if what is left is far below the statistical uncertainty.
-    if (!accepted) return { k, steps: step, converged: Math.abs(delta) <= ROUNDING_FLOOR * stdErr };
+    if (!accepted) return { at: current, steps: step, converged: Math.abs(delta) <= ROUNDING_FLOOR * stdErr };
   }
-  return { k, steps: MAX_POLISH_STEPS, converged: false };
+  return { at: current, steps: MAX_POLISH_STEPS, converged: false };
 }
 
-/** Residuals, SSE and standard errors from the covariance s^2 (J'J)^-1 at the optimum. */
-function finish(problem: NonlinearProblem, k: number, iterations: number, converged: boolean): NonlinearFit {
-  const { law, feed, t, values, map } = problem;
+/** Residuals and standard errors from the covariance s^2 (J'J)^-1 at the optimum. */
+function finish(problem: NonlinearProblem, at: Profile, iterations: number, converged: boolean): NonlinearFit {
+  const { t, values, map } = problem;
   const n = t.length;
-  const reach = maxReactedA(feed);
-  const S0 = problem.S0 ?? 0;
-  const span = map ? 0 : profile(problem, k).span;
   const residuals = new Array<number>(n);
-  let sse = 0;
-  let jkk = 0;
-  let jks = 0;
-  let jss = 0;
-  for (let i = 0; i < n; i++) {
-    const c = concentrationA(law, feed, k, t[i]);
-    const dc = sensitivityGivenCA(law, feed, k, t[i], c);
-    let r: number;
-    let dk: number;
-    let ds = 0;
-    if (map) {
-      r = values[i] - map.offset - map.slope * c;
-      dk = map.slope * dc;
-    } else {
-      ds = (feed.CA0 - c) / reach;
-      r = values[i] - S0 - span * ds;
-      dk = (-span / reach) * dc;
+  let sse = at.sse;
+  if (map) {
+    for (let i = 0; i < n; i++) residuals[i] = at.perPoint[i];
+  } else {
+    // recomputed from the residuals themselves: the SSE from sums loses digits on exact data
+    const S0 = problem.S0 ?? 0;
+    sse = 0;
+    for (let i = 0; i < n; i++) {
+      const r = values[i] - S0 - at.span * at.perPoint[i];
+      residuals[i] = r;
+      sse += r * r;
     }
-    residuals[i] = r;
-    sse += r * r;
-    jkk += dk * dk;
-    jks += dk * ds;
-    jss += ds * ds;
   }
+  const { k, jkk, jks, jss } = at;
   const dof = n - (map ? 1 : 2);
   const variance = dof > 0 ? sse / dof : NaN;
   const det = jkk * jss - jks * jks;
@@ -270,7 +272,7 @@ function finish(problem: NonlinearProblem, k: number, iterations: number, conver
     converged,
   };
   if (!map) {
-    const value = S0 + span;
+    const value = (problem.S0 ?? 0) + at.span;
     const stdErr = Math.sqrt((variance * jkk) / det);
     fit.Sinf = { value, stdErr, ci95: confidenceInterval(value, stdErr, dof) };
   }

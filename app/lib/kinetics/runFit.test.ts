@@ -183,6 +183,17 @@ describe("order comparison", () => {
     expect(result.k / 2e-3).toBeCloseTo(1, 9);
   });
 
+  it("on a long record compares the laws on evenly spaced rows, and still finds the right one", () => {
+    const req = syntheticRequest({ law: "second-order-A", k: 0.11, n: 12001, tEndS: 3000, noise: 1e-4, seed: 6 });
+    const result = runFit(req);
+    expect(result.orderComparison!.points).toBe(4001); // every 3rd row, 5000 at most
+    expect(result.orderComparison!.best).toBe("second-order-A");
+    const asked = result.orderComparison!.laws.find((l) => l.model === "second-order-A")!;
+    // the same law on a third of the rows: same k within the larger uncertainty
+    expect(Math.abs(asked.k - result.nonlinear.k)).toBeLessThan(3 * asked.kStdErr);
+    expect(result.n).toBe(12001);
+  });
+
   it("can be switched off", () => {
     const req = syntheticRequest({ law: "second-order-A", k: 0.1 });
     req.options = { compareOrders: false };

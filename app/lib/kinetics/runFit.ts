@@ -8,23 +8,18 @@ import {
   finalCA,
   lawFromOrders,
   limitingReagent,
-  lineY,
   maxReactedA,
   modelName,
   rateConstantUnit,
   textbookLine,
-  type Feed,
   type ModelName,
   type RateLaw,
 } from "./rateLaws.ts";
-import { fromCA, measurementMap, signalMap, toCA, type AffineMap, type Measurement } from "./measurement.ts";
-import { fitLine, type LineFit } from "./linearFit.ts";
-import { fitNonlinear, type NonlinearFit } from "./nonlinearFit.ts";
+import { fromCA } from "./measurement.ts";
 import { rateConstantAt } from "./arrhenius.ts";
 import {
   checkBeyondAsymptote,
   checkConverged,
-  checkCurvature,
   checkFewPoints,
   checkLowConversion,
   checkOrderMismatch,
@@ -33,6 +28,7 @@ import {
   checkUnitSlip,
   type Flag,
 } from "./diagnostics.ts";
+import { curvatureFlag, fitLaw, timeOrder, toSI, type LawFit, type RunData } from "./lawFit.ts";
 import { celsiusToKelvin, molPerLitrePer, secondsPer, type ConcentrationUnit, type TimeUnit } from "./units.ts";
 import type { FitRequest } from "./request.ts";
 
@@ -101,7 +97,11 @@ export interface FitResult {
     rows: number[];
     residuals: number[];
   };
-  orderComparison?: { best: ModelName; laws: LawComparison[] };
+  /**
+   * Curve fits of every supported law on the same rows; on records longer than
+   * COMPARISON_POINTS, on that many evenly spaced rows (`points` says how many).
+   */
+  orderComparison?: { best: ModelName; laws: LawComparison[]; points: number };
   limitingReagent: "A" | "B";
   /** long-time CA set by stoichiometry, request's concentration unit */
   finalCA: number;
@@ -112,102 +112,6 @@ export interface FitResult {
   units: { time: TimeUnit; concentration: ConcentrationUnit };
 }
 
-/** Run data in SI, as the engine works on it. */
-interface RunData {
-  feed: Feed;
-  measurement: Measurement;
-  t: Float64Array;
-  values: Float64Array;
-}
-
-interface LawFit {
-  law: RateLaw;
-  map: AffineMap;
-  line: LineFit | null;
-  lineRows: number[];
-  beyondRows: number[];
-  nonlinear: NonlinearFit;
-}
-
-/** Converts the request to SI. Concentration-valued measurements scale with the unit; others do not. */
-function toSI(request: FitRequest): RunData {
-  const ts = secondsPer(request.units.time);
-  const cs = molPerLitrePer(request.units.concentration);
-  const { a, b } = request.reaction;
-  const feed: Feed = { CA0: request.feed.CA0 * cs, CB0: (request.feed.CB0 ?? 0) * cs, nu: b / a };
-  const kind = request.measurement.kind;
-  const valueScale = kind === "concentrationA" || kind === "concentrationB" ? cs : 1;
-  const n = request.points.length;
-  const t = new Float64Array(n);
-  const values = new Float64Array(n);
-  for (let i = 0; i < n; i++) {
-    t[i] = request.points[i][0] * ts;
-    values[i] = request.points[i][1] * valueScale;
-  }
-  return { feed, measurement: request.measurement, t, values };
-}
-
-// For the other laws in the order comparison the straight line only seeds the nonlinear fit,
-// so on long records it is drawn through every stride-th point.
-const SEED_LINE_POINTS = 2000;
-
-/** Straight-line and nonlinear fits of one rate law (`seedOnly`: the line just seeds the curve fit). */
-function fitLaw(law: RateLaw, data: RunData, throughOrigin: boolean, seedOnly = false): LawFit {
-  const { feed, measurement, t, values } = data;
-  const n = t.length;
-  const stride = seedOnly ? Math.max(1, Math.floor(n / SEED_LINE_POINTS)) : 1;
-  let nonlinear: NonlinearFit | null = null;
-  let map: AffineMap;
-  if (measurement.kind === "signal" && measurement.Sinf === undefined) {
-    // Sinf unknown: the nonlinear fit finds it, and the straight line then uses it.
-    nonlinear = fitNonlinear({ law, feed, t, values, S0: measurement.S0 });
-    map = signalMap(measurement.S0, nonlinear.Sinf!.value, feed);
-  } else {
-    map = measurementMap(measurement, feed);
-  }
-  const end = finalCA(feed);
-  const lineRows: number[] = [];
-  const beyondRows: number[] = [];
-  const lineT = new Float64Array(n);
-  const lineYs = new Float64Array(n);
-  let used = 0;
-  for (let i = 0; i < n; i += stride) {
-    const CA = toCA(map, values[i]);
-    const y = lineY(law, feed, CA);
-    if (CA <= end || !Number.isFinite(y)) {
-      beyondRows.push(i);
-      continue;
-    }
-    lineRows.push(i);
-    lineT[used] = t[i];
-    lineYs[used] = y;
-    used++;
-  }
-  const line = used >= 2 ? fitLine(lineT.subarray(0, used), lineYs.subarray(0, used), throughOrigin) : null;
-  if (!nonlinear) nonlinear = fitNonlinear({ law, feed, t, values, map }, line?.slope);
-  return { law, map, line, lineRows, beyondRows, nonlinear };
-}
-
-/** Row indices in time order; the identity when the rows already are (the usual case). */
-function timeOrder(t: Float64Array): ArrayLike<number> {
-  const n = t.length;
-  const order = new Int32Array(n);
-  let sorted = true;
-  for (let i = 0; i < n; i++) {
-    order[i] = i;
-    if (i > 0 && t[i] < t[i - 1]) sorted = false;
-  }
-  if (!sorted) order.sort((i, j) => t[i] - t[j] || i - j);
-  return order;
-}
-
-function curvatureFlag(fit: LawFit, order: ArrayLike<number>): Flag | null {
-  const r = fit.nonlinear.residuals;
-  const inOrder = new Float64Array(order.length);
-  for (let i = 0; i < order.length; i++) inOrder[i] = r[order[i]];
-  return checkCurvature(inOrder, order);
-}
-
 export function runFit(request: FitRequest): FitResult {
   const data = toSI(request);
   const { feed } = data;
@@ -216,7 +120,6 @@ export function runFit(request: FitRequest): FitResult {
   const throughOrigin = request.options?.lineThroughOrigin ?? false;
   const ts = secondsPer(request.units.time);
   const cs = molPerLitrePer(request.units.concentration);
-  const valueScale = data.measurement.kind === "concentrationA" || data.measurement.kind === "concentrationB" ? cs : 1;
   const n = data.t.length;
   const order = timeOrder(data.t);
   const lastRow = order[n - 1];
@@ -224,7 +127,6 @@ export function runFit(request: FitRequest): FitResult {
   const fit = fitLaw(law, data, throughOrigin);
   const { line, nonlinear } = fit;
   const model = modelName(law, feed);
-  const kUnit = rateConstantUnit(law);
   const k = line ? line.slope : NaN;
 
   const flags: Flag[] = [];
@@ -235,8 +137,7 @@ export function runFit(request: FitRequest): FitResult {
   push(checkTimeOrder(data.t));
   const end = finalCA(feed);
   push(checkBeyondAsymptote(fit.beyondRows, `CA = ${formatNumber(end / cs)} ${request.units.concentration}`));
-  const tLast = data.t[lastRow];
-  const fractionReacted = (feed.CA0 - concentrationA(law, feed, nonlinear.k, tLast)) / maxReactedA(feed);
+  const fractionReacted = (feed.CA0 - concentrationA(law, feed, nonlinear.k, data.t[lastRow])) / maxReactedA(feed);
   push(checkLowConversion(fractionReacted, limitingReagent(feed), lastRow));
   const curvature = curvatureFlag(fit, order);
   push(curvature);
@@ -245,58 +146,23 @@ export function runFit(request: FitRequest): FitResult {
 
   let orderComparison: FitResult["orderComparison"];
   if (request.options?.compareOrders ?? true) {
-    const laws: LawComparison[] = [];
-    let best = { model, sse: nonlinear.sse };
-    // the A-B law needs some B; without it only the A-only laws are compared
-    const candidates = RATE_LAWS.filter((l) => l !== "second-order-AB" || feed.CB0 > 0);
-    for (const other of candidates) {
-      const f = other === law ? fit : fitLaw(other, data, throughOrigin, true);
-      const entry: LawComparison = {
-        model: modelName(other, feed),
-        k: f.nonlinear.k,
-        kUnit: rateConstantUnit(other),
-        kStdErr: f.nonlinear.kStdErr,
-        sse: f.nonlinear.sse / (valueScale * valueScale),
-        residualStdDev: f.nonlinear.residualStdDev / valueScale,
-        curved: other === law ? curvature !== null : curvatureFlag(f, order) !== null,
-      };
-      laws.push(entry);
-      if (f.nonlinear.sse < best.sse) best = { model: entry.model, sse: f.nonlinear.sse };
-    }
-    orderComparison = { best: best.model, laws };
-    push(checkOrderMismatch(n, model, nonlinear.sse, best.model, best.sse));
+    orderComparison = compareLaws(data, fit, curvature !== null, order, throughOrigin);
+    const best = orderComparison.laws.find((l) => l.model === orderComparison!.best)!;
+    const asked = orderComparison.laws.find((l) => l.model === model)!;
+    push(checkOrderMismatch(n, model, asked.sse, best.model, best.sse));
   }
 
   let reference: FitResult["reference"];
   if (request.reference) {
-    const ref = request.reference;
-    const tolerancePct = ref.tolerancePct ?? DEFAULT_TOLERANCE_PCT;
-    const temperatureK = request.temperatureC === undefined ? undefined : celsiusToKelvin(request.temperatureC);
-    const kAtT =
-      ref.EaKJ === undefined || temperatureK === undefined || ref.TrefC === undefined
-        ? ref.k
-        : rateConstantAt(ref.k, celsiusToKelvin(ref.TrefC), ref.EaKJ * 1000, temperatureK);
-    const deviationPct = ((k - kAtT) / kAtT) * 100;
-    reference = { kAtT, deviationPct, withinTolerance: Math.abs(deviationPct) <= tolerancePct, tolerancePct, temperatureK };
-    push(checkUnitSlip(k, kAtT));
+    reference = referenceCheck(request, k);
+    push(checkUnitSlip(k, reference.kAtT));
   }
 
   const textbook = textbookLine(law, feed);
-  let tMax = 0;
-  for (const ti of data.t) tMax = Math.max(tMax, ti);
-  const curve = { t: [] as number[], CA: [] as number[], value: [] as number[] };
-  for (let i = 0; i < CURVE_POINTS; i++) {
-    const ti = (tMax * i) / (CURVE_POINTS - 1);
-    const c = concentrationA(law, feed, nonlinear.k, ti);
-    curve.t.push(ti / ts);
-    curve.CA.push(c / cs);
-    curve.value.push(fromCA(fit.map, c) / valueScale);
-  }
-
   return {
     model,
     k,
-    kUnit,
+    kUnit: rateConstantUnit(law),
     kStdErr: line ? line.slopeStdErr : NaN,
     kCI95: line ? line.slopeCI95 : [NaN, NaN],
     r2: line ? line.r2 : NaN,
@@ -306,8 +172,8 @@ export function runFit(request: FitRequest): FitResult {
       kStdErr: nonlinear.kStdErr,
       kCI95: nonlinear.kCI95,
       Sinf: nonlinear.Sinf,
-      residualStdDev: nonlinear.residualStdDev / valueScale,
-      residuals: nonlinear.residuals.map((r) => r / valueScale),
+      residualStdDev: nonlinear.residualStdDev / data.valueScale,
+      residuals: nonlinear.residuals.map((r) => r / data.valueScale),
       iterations: nonlinear.iterations,
       converged: nonlinear.converged,
     },
@@ -327,9 +193,89 @@ export function runFit(request: FitRequest): FitResult {
     limitingReagent: limitingReagent(feed),
     finalCA: end / cs,
     fractionReacted,
-    curve,
+    curve: predictedCurve(fit, data, ts, cs),
     units: { ...request.units },
   };
+}
+
+// Discriminating between rate laws needs far fewer points than a long logger record has: above
+// this many, the comparison runs on evenly spaced rows (every law on the same ones).
+export const COMPARISON_POINTS = 5000;
+
+/** Curve fits of every law the feed allows, on the same data; best = smallest residual sum of squares. */
+function compareLaws(
+  data: RunData,
+  requested: LawFit,
+  requestedCurved: boolean,
+  order: ArrayLike<number>,
+  throughOrigin: boolean,
+): NonNullable<FitResult["orderComparison"]> {
+  const n = data.t.length;
+  const stride = Math.ceil(n / COMPARISON_POINTS);
+  const sample = stride === 1 ? data : everyNth(data, stride);
+  const sampleOrder = stride === 1 ? order : timeOrder(sample.t);
+  const { feed, valueScale } = sample;
+  // the A-B law needs some B; without it only the A-only laws are compared
+  const candidates = RATE_LAWS.filter((l: RateLaw) => l !== "second-order-AB" || feed.CB0 > 0);
+  const laws: LawComparison[] = [];
+  let best: LawComparison | null = null;
+  for (const law of candidates) {
+    const reuse = stride === 1 && law === requested.law;
+    const f = reuse ? requested : fitLaw(law, sample, throughOrigin, true);
+    const entry: LawComparison = {
+      model: modelName(law, feed),
+      k: f.nonlinear.k,
+      kUnit: rateConstantUnit(law),
+      kStdErr: f.nonlinear.kStdErr,
+      sse: f.nonlinear.sse / (valueScale * valueScale),
+      residualStdDev: f.nonlinear.residualStdDev / valueScale,
+      curved: reuse ? requestedCurved : curvatureFlag(f, sampleOrder) !== null,
+    };
+    laws.push(entry);
+    if (!best || entry.sse < best.sse) best = entry;
+  }
+  return { best: best!.model, laws, points: sample.t.length };
+}
+
+/** Every stride-th row (and the last), for the order comparison on long records. */
+function everyNth(data: RunData, stride: number): RunData {
+  const n = data.t.length;
+  const rows: number[] = [];
+  for (let i = 0; i < n; i += stride) rows.push(i);
+  if (rows[rows.length - 1] !== n - 1) rows.push(n - 1);
+  return {
+    ...data,
+    t: Float64Array.from(rows, (i) => data.t[i]),
+    values: Float64Array.from(rows, (i) => data.values[i]),
+  };
+}
+
+/** Reference k carried to the run temperature, and how far the fitted k is from it. */
+function referenceCheck(request: FitRequest, k: number): NonNullable<FitResult["reference"]> {
+  const ref = request.reference!;
+  const tolerancePct = ref.tolerancePct ?? DEFAULT_TOLERANCE_PCT;
+  const temperatureK = request.temperatureC === undefined ? undefined : celsiusToKelvin(request.temperatureC);
+  const kAtT =
+    ref.EaKJ === undefined || temperatureK === undefined || ref.TrefC === undefined
+      ? ref.k
+      : rateConstantAt(ref.k, celsiusToKelvin(ref.TrefC), ref.EaKJ * 1000, temperatureK);
+  const deviationPct = ((k - kAtT) / kAtT) * 100;
+  return { kAtT, deviationPct, withinTolerance: Math.abs(deviationPct) <= tolerancePct, tolerancePct, temperatureK };
+}
+
+/** CA and the measured value predicted by the curve fit, from 0 to the last time, in the request's units. */
+function predictedCurve(fit: LawFit, data: RunData, ts: number, cs: number): FitResult["curve"] {
+  let tMax = 0;
+  for (const ti of data.t) tMax = Math.max(tMax, ti);
+  const curve: FitResult["curve"] = { t: [], CA: [], value: [] };
+  for (let i = 0; i < CURVE_POINTS; i++) {
+    const ti = (tMax * i) / (CURVE_POINTS - 1);
+    const c = concentrationA(fit.law, data.feed, fit.nonlinear.k, ti);
+    curve.t.push(ti / ts);
+    curve.CA.push(c / cs);
+    curve.value.push(fromCA(fit.map, c) / data.valueScale);
+  }
+  return curve;
 }
 
 function formatNumber(x: number): string {
