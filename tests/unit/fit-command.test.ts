@@ -1,11 +1,11 @@
 // The fit command end to end: spawns `npx tsx scripts/fit.ts` with a request on stdin.
-// (Test-only use of node:child_process; nothing in the engine imports node modules.)
+// Lives under tests/unit/ because it uses node:child_process; the engine imports no node modules.
 
 import { describe, expect, it } from "vitest";
 import { spawnSync } from "node:child_process";
-import { exactRun, normalSource, withNoise } from "./synthetic.ts";
+import { exactRun, normalSource, withNoise } from "~/lib/kinetics/synthetic.ts";
 
-const root = new URL("../../../", import.meta.url).pathname;
+const root = new URL("../../", import.meta.url).pathname;
 
 function runCommand(stdin: string) {
   const res = spawnSync("npx", ["tsx", "scripts/fit.ts"], { cwd: root, input: stdin, encoding: "utf8", timeout: 60000 });
