@@ -6,18 +6,10 @@ import http from "node:http";
 import path from "node:path";
 import { SMTPServer } from "smtp-server";
 import { simpleParser, type AddressObject } from "mailparser";
-
-export interface StoredMessage {
-  id: string;
-  receivedAt: string;
-  from: string;
-  to: string[];
-  subject: string;
-  text: string;
-}
+import type { MailMessage } from "../../app/lib/mail-message";
 
 export interface MailSink {
-  messages: StoredMessage[];
+  messages: MailMessage[];
   smtpPort: number;
   httpPort: number;
   close(): Promise<void>;
@@ -29,7 +21,7 @@ function addresses(a: AddressObject | AddressObject[] | undefined): string[] {
 }
 
 export async function startMailSink(opts: { smtpPort: number; httpPort: number; file?: string }): Promise<MailSink> {
-  const messages: StoredMessage[] = [];
+  const messages: MailMessage[] = [];
   if (opts.file && fs.existsSync(opts.file)) {
     for (const line of fs.readFileSync(opts.file, "utf8").split("\n")) if (line.trim()) messages.push(JSON.parse(line));
   }
@@ -42,7 +34,7 @@ export async function startMailSink(opts: { smtpPort: number; httpPort: number; 
     async onData(stream, session, callback) {
       try {
         const parsed = await simpleParser(stream);
-        const msg: StoredMessage = {
+        const msg: MailMessage = {
           id: String(++seq),
           receivedAt: new Date().toISOString(),
           from: addresses(parsed.from)[0] ?? session.envelope.mailFrom?.toString() ?? "",
