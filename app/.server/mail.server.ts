@@ -21,7 +21,7 @@ export async function sendMail(mail: OutgoingMail) {
 
 
 /** Messages held by the local mail sink (development and tests only). */
-export async function listMailMessages(): Promise<MailMessage[] | null> {
+export async function listSinkMessages(): Promise<MailMessage[] | null> {
   if (!config.mailSinkUrl) return null;
   const res = await fetch(`${config.mailSinkUrl}/messages`);
   if (!res.ok) throw new Error(`mail sink answered ${res.status}`);
