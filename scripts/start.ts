@@ -20,7 +20,16 @@ const env: NodeJS.ProcessEnv = { ...process.env, DATABASE_URL: db.url, PORT: Str
 if (!process.env.SMTP_URL) {
   const smtpPort = Number(process.env.MAIL_SINK_SMTP_PORT ?? 2525);
   const httpPort = Number(process.env.MAIL_SINK_HTTP_PORT ?? 2526);
-  await startMailSink({ smtpPort, httpPort, file: path.join(projectRoot, ".data", "mail", "messages.jsonl") });
+  try {
+    await startMailSink({ smtpPort, httpPort, file: path.join(projectRoot, ".data", "mail", "messages.jsonl") });
+  } catch (error) {
+    if ((error as NodeJS.ErrnoException).code !== "EADDRINUSE") throw error;
+    console.error(
+      `[mail] port ${smtpPort} or ${httpPort} is taken: is another \`npm start\` running? ` +
+        "Stop it, or choose other ports with MAIL_SINK_SMTP_PORT and MAIL_SINK_HTTP_PORT.",
+    );
+    process.exit(1);
+  }
   env.SMTP_URL = `smtp://127.0.0.1:${smtpPort}`;
   env.MAIL_SINK_URL = `http://127.0.0.1:${httpPort}`;
   console.log(`[mail] local mail sink on 127.0.0.1:${smtpPort}; admins read it at /admin/mail`);
