@@ -12,6 +12,7 @@ export default [
   layout("routes/signed-in-layout.tsx", [
     route("dashboard", "routes/dashboard.tsx"),
     route("courses/new", "routes/course-new.tsx"),
+    route("fit-check", "routes/fit-check.tsx"),
     route("courses/:courseId", "routes/course.tsx"),
     ...prefix("admin", [
       route("people", "routes/admin-people.tsx"),

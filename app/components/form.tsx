@@ -33,9 +33,11 @@ interface SelectProps extends SelectHTMLAttributes<HTMLSelectElement> {
   name: string;
   error?: string;
   options: readonly string[];
+  /** text shown for each option value, when it differs from the value */
+  labels?: Record<string, string>;
 }
 
-export function SelectField({ label, name, error, options, ...select }: SelectProps) {
+export function SelectField({ label, name, error, options, labels, ...select }: SelectProps) {
   const id = `f-${name}`;
   return (
     <div className="mb-4">
@@ -49,7 +51,7 @@ export function SelectField({ label, name, error, options, ...select }: SelectPr
         {...select}
       >
         {options.map((o) => (
-          <option key={o} value={o}>{o}</option>
+          <option key={o} value={o}>{labels?.[o] ?? o}</option>
         ))}
       </select>
       <FieldError id={`${id}-error`} message={error} />

@@ -9,6 +9,7 @@ export interface NavItem {
 export function navFor(role: Role): NavItem[] {
   const items: NavItem[] = [{ to: "/dashboard", label: "Dashboard" }];
   if (role === "admin" || role === "instructor") items.push({ to: "/courses/new", label: "New course" });
+  if (role !== "student") items.push({ to: "/fit-check", label: "Check a data set" });
   if (role === "admin") {
     items.push(
       { to: "/admin/people", label: "People" },

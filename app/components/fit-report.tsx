@@ -1,0 +1,145 @@
+// What the engine found for one run: k with its 95 % interval, the reference comparison,
+// flags with the pasted lines they concern, the order comparison and two plots.
+import type { FitResult } from "~/lib/kinetics";
+import type { MeasuredKind } from "~/lib/fit-form";
+import { sig, unitText, withInterval } from "~/lib/format";
+import { XYPlot } from "./xy-plot";
+
+const MODEL_TEXT: Record<string, string> = {
+  "first-order": "first order in A",
+  "second-order-A": "second order in A",
+  "second-order-AB-stoichiometric": "first order in A and B, stoichiometric feed",
+  "second-order-AB-unequal": "first order in A and B, unequal feed",
+};
+
+function measuredLabel(kind: MeasuredKind, concentrationUnit: string) {
+  switch (kind) {
+    case "concentrationA": return `CA / (${concentrationUnit})`;
+    case "concentrationB": return `CB / (${concentrationUnit})`;
+    case "conversionA": return "conversion of A (–)";
+    case "signal": return "signal (units as entered)";
+    case "absorbance": return "absorbance (–)";
+  }
+}
+
+interface Props {
+  result: FitResult;
+  kind: MeasuredKind;
+  /** the readings as sent, [time, value] in the request's units */
+  points: Array<[number, number]>;
+  /** pasted line of each reading, to name lines in flags */
+  lines: number[];
+}
+
+export function FitReport({ result, kind, points, lines }: Props) {
+  const lineOf = (row: number) => lines[row] ?? row + 1;
+  const timeUnit = result.units.time;
+  const perMinute = timeUnit === "min";
+  const ref = result.reference;
+  return (
+    <section aria-labelledby="result-h" className="mt-8 rounded border border-rule bg-white p-4">
+      <h2 id="result-h" className="text-2xl font-bold">Result</h2>
+      <p className="mt-1 text-ink-soft">
+        Model: <strong className="text-ink">{MODEL_TEXT[result.model] ?? result.model}</strong>; straight line {result.line.form} against t.
+        k is defined on A: −dCA/dt = k·CA{result.model.startsWith("second-order-AB") ? "·CB" : result.model === "second-order-A" ? "²" : ""}. Limiting reagent {result.limitingReagent}.
+      </p>
+      <table className="mt-4 border-collapse text-left">
+        <tbody>
+          <tr className="border-b border-rule">
+            <th className="py-1 pr-6">k, straight-line fit</th>
+            <td className="num py-1">{withInterval(result.k, result.kCI95)} {unitText(result.kUnit)}</td>
+            {perMinute ? <td className="num py-1 pl-6 text-ink-soft">= {sig(result.k * 60)} {unitText(result.kUnit, true)}</td> : <td />}
+          </tr>
+          <tr className="border-b border-rule">
+            <th className="py-1 pr-6">k, curve fit to the readings</th>
+            <td className="num py-1">{withInterval(result.nonlinear.k, result.nonlinear.kCI95)} {unitText(result.kUnit)}</td>
+            {perMinute ? <td className="num py-1 pl-6 text-ink-soft">= {sig(result.nonlinear.k * 60)} {unitText(result.kUnit, true)}</td> : <td />}
+          </tr>
+          {result.nonlinear.Sinf ? (
+            <tr className="border-b border-rule">
+              <th className="py-1 pr-6">Final signal S∞ (fitted)</th>
+              <td className="num py-1">{withInterval(result.nonlinear.Sinf.value, result.nonlinear.Sinf.ci95)}</td><td />
+            </tr>
+          ) : null}
+          <tr className="border-b border-rule"><th className="py-1 pr-6">R² of the straight line</th><td className="num py-1">{sig(result.r2, 5)}</td><td /></tr>
+          <tr className="border-b border-rule"><th className="py-1 pr-6">Points used</th><td className="num py-1">{result.n}</td><td /></tr>
+          <tr className="border-b border-rule">
+            <th className="py-1 pr-6">Start-time offset implied by the intercept</th>
+            <td className="num py-1">{sig(result.line.timeOffset, 3)} {timeUnit}</td><td />
+          </tr>
+          <tr><th className="py-1 pr-6">Limiting reagent reacted by the last reading</th><td className="num py-1">{sig(result.fractionReacted * 100, 3)} %</td><td /></tr>
+        </tbody>
+      </table>
+
+      {ref ? (
+        <p className={`mt-4 rounded border-l-4 px-4 py-2 ${ref.withinTolerance ? "border-good" : "border-bad bg-bad-soft"}`}>
+          <strong>{ref.withinTolerance ? "✓ Within tolerance" : "✕ Outside tolerance"}</strong>: reference k at{" "}
+          {ref.temperatureK ? `${sig(ref.temperatureK - 273.15, 4)} °C` : "the run temperature"} is {sig(ref.kAtT)} {unitText(result.kUnit)}; the
+          straight-line k differs by {sig(ref.deviationPct, 3)} % (tolerance ±{sig(ref.tolerancePct, 3)} %).
+        </p>
+      ) : null}
+
+      <h3 className="mt-6 text-lg font-bold">Things to look at</h3>
+      {result.flags.length === 0 ? (
+        <p>None found.</p>
+      ) : (
+        <ul className="mt-2 space-y-2">
+          {result.flags.map((f) => (
+            <li key={f.code} className="rounded border-l-4 border-warn bg-warn-soft px-3 py-2">
+              <span className="font-bold">⚠ {f.code}</span>: {f.message}
+              {f.rows.length ? <span className="text-ink-soft"> (lines {f.rows.slice(0, 12).map(lineOf).join(", ")}{f.rows.length > 12 ? ", …" : ""})</span> : null}
+            </li>
+          ))}
+        </ul>
+      )}
+
+      {result.orderComparison ? (
+        <>
+          <h3 className="mt-6 text-lg font-bold">Which rate law describes the readings best</h3>
+          <table className="mt-2 border-collapse text-left">
+            <thead>
+              <tr className="border-b-2 border-ink"><th className="py-1 pr-6">Rate law</th><th className="num py-1 pr-6">k (per second)</th><th className="num py-1 pr-6">Residual SD</th><th className="py-1">Residuals bend?</th></tr>
+            </thead>
+            <tbody>
+              {result.orderComparison.laws.map((l) => (
+                <tr key={l.model} className="border-b border-rule">
+                  <td className="py-1 pr-6">{l.model === result.orderComparison!.best ? "★ " : ""}{MODEL_TEXT[l.model] ?? l.model}{l.model === result.orderComparison!.best ? " (best)" : ""}</td>
+                  <td className="num py-1 pr-6">{sig(l.k)} {unitText(l.kUnit)}</td>
+                  <td className="num py-1 pr-6">{sig(l.residualStdDev, 3)}</td>
+                  <td className="py-1">{l.curved ? "yes" : "no"}</td>
+                </tr>
+              ))}
+            </tbody>
+          </table>
+        </>
+      ) : null}
+
+      <ReadingsPlots result={result} kind={kind} points={points} />
+    </section>
+  );
+}
+
+function ReadingsPlots({ result, kind, points }: Pick<Props, "result" | "kind" | "points">) {
+  const t = result.curve.t;
+  const label = measuredLabel(kind, result.units.concentration);
+  const timeLabel = `time / ${result.units.time}`;
+  return (
+    <>
+      <XYPlot
+        title="Readings against time with the fitted model"
+        xLabel={timeLabel}
+        yLabel={label}
+        points={points}
+        curve={t.map((x, i) => [x, result.curve.value[i]])}
+      />
+      <XYPlot
+        title="Residuals of the curve fit (reading minus model)"
+        xLabel={timeLabel}
+        yLabel={`residual, ${label}`}
+        points={points.map(([x], i) => [x, result.nonlinear.residuals[i]])}
+        zeroLine
+        height={200}
+      />
+    </>
+  );
+}

@@ -1,0 +1,52 @@
+// The "check a data set" page in Debian's chromium: invented example in, k with its interval out;
+// bad input gets messages beside the fields that hold it.
+import fs from "node:fs";
+import path from "node:path";
+import { afterAll, beforeAll, describe, expect, test } from "vitest";
+import { chromium, type Browser, type Page } from "playwright-core";
+import { CHROMIUM_ARGS, CHROMIUM_PATH, startAppServer } from "./app-server";
+
+const shots = path.resolve(import.meta.dirname, "..", "..", "test-results");
+let server: Awaited<ReturnType<typeof startAppServer>>;
+let browser: Browser;
+let page: Page;
+
+beforeAll(async () => {
+  fs.mkdirSync(shots, { recursive: true });
+  server = await startAppServer();
+  browser = await chromium.launch({ executablePath: CHROMIUM_PATH, args: CHROMIUM_ARGS });
+  page = await browser.newPage({ viewport: { width: 1280, height: 900 } });
+  await page.goto(`${server.url}/sign-in?returnTo=%2Ffit-check`);
+  await page.getByLabel("E-mail").fill("instructor@demo.ratebook.invalid");
+  await page.getByLabel("Password").fill("demo-instructor-pass");
+  await page.getByRole("button", { name: "Sign in" }).click();
+  await page.waitForURL(`${server.url}/fit-check`);
+}, 180_000);
+
+afterAll(async () => {
+  await browser?.close();
+  server?.stop();
+});
+
+describe("check a data set", () => {
+  test("the invented example fits: unequal-feed model, k with a 95 % interval, reference comparison, plots", async () => {
+    await page.getByRole("button", { name: "Fill in an invented example" }).click();
+    await page.getByRole("button", { name: "Fit", exact: true }).click();
+    await expect.poll(() => page.getByRole("heading", { name: "Result" }).count(), { timeout: 10_000 }).toBe(1);
+    const report = (await page.locator("section[aria-labelledby=result-h]").textContent()) ?? "";
+    expect(report).toContain("first order in A and B, unequal feed");
+    expect(report).toMatch(/k, straight-line fit[\d.]+ \(95 % CI [\d.]+ to [\d.]+\) L\/\(mol·s\)/);
+    expect(report).toMatch(/Within tolerance|Outside tolerance/);
+    expect(await page.getByRole("img", { name: "Readings against time with the fitted model" }).count()).toBe(1);
+    await page.screenshot({ path: path.join(shots, "fit-check-result.png"), fullPage: true });
+  });
+
+  test("bad input is named beside its field, with the pasted line", async () => {
+    await page.getByLabel("CA0").fill("");
+    await page.getByRole("textbox", { name: /Readings/ }).fill("time,value\n0,2.1\n2,abc\n4,1.9\n6,1.8");
+    await page.getByRole("button", { name: "Fit", exact: true }).click();
+    await expect.poll(() => page.getByText("Enter the initial concentration of A.").count()).toBe(1);
+    expect(await page.getByText('Line 3, column 2 (value): "abc" is not a number.').count()).toBe(1);
+    await page.screenshot({ path: path.join(shots, "fit-check-errors.png") });
+  });
+});
