@@ -219,7 +219,10 @@ function polish(problem: NonlinearProblem, k: number): { at: Profile; steps: num
       return { at: current, steps: step, converged: true };
     }
     let accepted = false;
-    for (let halving = 0, scale = 1; halving < 20 && !accepted; halving++, scale /= 2) {
+    // Halve the step until the SSE falls, but not below what the convergence test ignores anyway:
+    // each try is a pass over the whole record.
+    const smallest = STDERR_STEP_TOLERANCE * stdErr;
+    for (let halving = 0, scale = 1; halving < 20 && !accepted && (halving === 0 || scale * Math.abs(delta) > smallest); halving++, scale /= 2) {
       const kNew = current.k + scale * delta;
       if (!(kNew > 0)) continue;
       const next = profile(problem, kNew, spare);
