@@ -11,6 +11,7 @@ export default [
   // Everything below needs a signed-in person; the layout's loader checks it.
   layout("routes/signed-in-layout.tsx", [
     route("dashboard", "routes/dashboard.tsx"),
+    route("account", "routes/account.tsx"),
     route("courses/new", "routes/course-new.tsx"),
     route("fit-check", "routes/fit-check.tsx"),
     route("courses/:courseId", "routes/course.tsx"),

@@ -3,8 +3,12 @@
 import { Umzug, SequelizeStorage } from "umzug";
 import type { QueryInterface, Sequelize } from "sequelize";
 import * as m0001 from "./migrations/0001-foundation";
+import * as m0002 from "./migrations/0002-sign-in-attempts-by-time";
 
-const migrations = [{ name: "0001-foundation", ...m0001 }];
+const migrations = [
+  { name: "0001-foundation", ...m0001 },
+  { name: "0002-sign-in-attempts-by-time", ...m0002 },
+];
 
 export function createMigrator(sequelize: Sequelize, opts: { quiet?: boolean } = {}) {
   return new Umzug({

@@ -2,7 +2,7 @@
 // same transaction as the change.
 import { sequelize, User, Course, CourseMembership, type CourseRole, type Role, COURSE_ROLES, ROLES } from "./db/models.server";
 import { issueToken, checkToken, consumeToken } from "./tokens.server";
-import { checkNewPassword, hashPassword } from "./passwords.server";
+import { checkNewPassword, hashPassword, verifyPassword } from "./passwords.server";
 import { recordAudit } from "./audit.server";
 import { sendMail } from "./mail.server";
 import { config } from "./config.server";
@@ -165,4 +165,23 @@ export async function changeMembershipRole(actor: User, courseId: number, member
     await recordAudit({ actorId: actor.id, action: "membership.role-changed", entityType: "course_membership", entityId: m.id, before, after: { role } }, transaction);
     return { ok: true as const, value: undefined };
   });
+}
+
+/** A signed-in person changes their own password; the current one must be given. */
+export async function changeOwnPassword(user: User, input: { current: unknown; password: unknown; confirm: unknown }): Promise<Outcome> {
+  const current = String(input.current ?? "");
+  const password = String(input.password ?? "");
+  const errors: FieldErrors = {};
+  if (!current) errors.current = "Enter your current password.";
+  else if (!(await verifyPassword(current, user.passwordHash))) errors.current = "That is not your current password.";
+  const pwError = checkNewPassword(password, String(input.confirm ?? ""));
+  if (pwError) errors.password = pwError;
+  else if (password === current) errors.password = "Choose a password different from the current one.";
+  if (Object.keys(errors).length) return { ok: false, errors };
+  const passwordHash = await hashPassword(password);
+  await sequelize.transaction(async (transaction) => {
+    await user.update({ passwordHash }, { transaction });
+    await recordAudit({ actorId: user.id, action: "user.password-changed", entityType: "user", entityId: user.id }, transaction);
+  });
+  return { ok: true, value: undefined };
 }

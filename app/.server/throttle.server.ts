@@ -34,6 +34,10 @@ export async function throttleWait(email: string, ip: string, now = new Date()):
   return wait;
 }
 
-export function recordAttempt(email: string, ip: string, succeeded: boolean) {
-  return SignInAttempt.create({ email, ip, succeeded });
+/** Attempts older than this are no longer needed by any check. */
+export const KEEP_ATTEMPTS_MS = 24 * 60 * 60 * 1000;
+
+export async function recordAttempt(email: string, ip: string, succeeded: boolean, now = new Date()) {
+  await SignInAttempt.create({ email, ip, succeeded });
+  await SignInAttempt.destroy({ where: { createdAt: { [Op.lt]: new Date(now.getTime() - KEEP_ATTEMPTS_MS) } } });
 }

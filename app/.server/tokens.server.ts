@@ -21,6 +21,8 @@ export async function issueToken(
   now = new Date(),
 ): Promise<string> {
   const token = crypto.randomBytes(32).toString("base64url");
+  // Only the newest link of a kind works: a re-sent invitation or reset replaces older ones.
+  await AuthToken.destroy({ where: { userId, purpose, usedAt: null }, transaction });
   await AuthToken.create(
     {
       userId,
@@ -40,12 +42,12 @@ export type TokenCheck =
 
 const REASON_TEXT: Record<TokenPurpose, Record<"unknown" | "used" | "expired", string>> = {
   invitation: {
-    unknown: "This invitation link is not valid. Check that the whole link was copied, or ask for a new invitation.",
+    unknown: "This invitation link is not valid: check that the whole link was copied, or use the newest invitation e-mail (a new one replaces older links).",
     used: "This invitation has already been accepted. Sign in with your e-mail and password.",
     expired: "This invitation has expired. Ask the person who invited you to send a new one.",
   },
   "password-reset": {
-    unknown: "This reset link is not valid. Check that the whole link was copied, or ask for a new one.",
+    unknown: "This reset link is not valid: check that the whole link was copied, or use the newest reset e-mail (a new one replaces older links).",
     used: "This reset link has already been used. Ask for a new one if you still need it.",
     expired: "This reset link has expired (links last one hour). Ask for a new one.",
   },

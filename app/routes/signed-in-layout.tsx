@@ -35,7 +35,7 @@ function Shell({ data, children }: { data: LayoutData; children: ReactNode }) {
           </nav>
           <div className="ml-auto flex items-center gap-3 text-sm">
             <span>
-              <span className="font-bold">{user.displayName}</span>{" "}
+              <NavLink to="/account" className="font-bold underline-offset-4 hover:underline" title="Your account">{user.displayName}</NavLink>{" "}
               <span className="rounded border border-ink-soft px-2 py-0.5 text-ink-soft">{user.role}</span>
             </span>
             <Form method="post" action="/sign-out">

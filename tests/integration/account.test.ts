@@ -1,0 +1,74 @@
+// Changing one's own password, replaced links, and pruning of old sign-in attempts.
+import { describe, expect, test } from "vitest";
+import { Op } from "sequelize";
+import { action as signIn } from "~/routes/sign-in";
+import { action as accountAction, loader as accountLoader } from "~/routes/account";
+import { action as forgotAction } from "~/routes/password-forgot";
+import { loader as resetLoader } from "~/routes/password-reset";
+import { AuditEntry, SignInAttempt, User } from "~/.server/db/models.server";
+import { hashPassword } from "~/.server/passwords.server";
+import { KEEP_ATTEMPTS_MS, recordAttempt } from "~/.server/throttle.server";
+import { call, cookieFrom, linkToken, mailTo, payloadOf, request, statusOf } from "./helpers";
+
+async function makeUser(email: string, password: string) {
+  return User.create({ email, displayName: "Account test (test)", role: "demonstrator", passwordHash: await hashPassword(password) });
+}
+
+async function signInCookie(email: string, password: string) {
+  const res = await call(signIn, request("/sign-in", { form: { email, password } }));
+  expect(res.status).toBe(302);
+  return cookieFrom(res);
+}
+
+describe("own password", () => {
+  test("needs the current password, a valid new one, and is audited", async () => {
+    const email = "account-owner@demo.ratebook.invalid";
+    const user = await makeUser(email, "first-password-1");
+    const cookie = await signInCookie(email, "first-password-1");
+    expect(payloadOf(await call(accountLoader, request("/account", { cookie })))).toMatchObject({ email, role: "demonstrator" });
+
+    const wrong = await call(accountAction, request("/account", { cookie, form: { current: "nope-nope-nope", password: "second-password-2", confirm: "second-password-2" } }));
+    expect(statusOf(wrong)).toBe(400);
+    expect(payloadOf(wrong).errors.current).toBe("That is not your current password.");
+    const same = await call(accountAction, request("/account", { cookie, form: { current: "first-password-1", password: "first-password-1", confirm: "first-password-1" } }));
+    expect(payloadOf(same).errors.password).toMatch(/different from the current/);
+
+    const ok = await call(accountAction, request("/account", { cookie, form: { current: "first-password-1", password: "second-password-2", confirm: "second-password-2" } }));
+    expect(payloadOf(ok).changed).toBe(true);
+    await signInCookie(email, "second-password-2");
+    expect(await AuditEntry.count({ where: { action: "user.password-changed", entityId: String(user.id) } })).toBe(1);
+  });
+
+  test("signed out, the account page sends you to sign-in", async () => {
+    const res = await call(accountLoader, request("/account"));
+    expect(res.headers.get("Location")).toBe("/sign-in?returnTo=%2Faccount");
+  });
+});
+
+describe("a new link replaces the older one", () => {
+  test("two reset requests: only the newest link works", async () => {
+    const email = "two-resets@demo.ratebook.invalid";
+    await makeUser(email, "some-password-1");
+    await call(forgotAction, request("/password/forgot", { form: { email } }));
+    await call(forgotAction, request("/password/forgot", { form: { email } }));
+    let mails = await mailTo(email);
+    for (let i = 0; i < 50 && mails.length < 2; i++) {
+      await new Promise((r) => setTimeout(r, 50));
+      mails = await mailTo(email);
+    }
+    expect(mails).toHaveLength(2);
+    const [older, newer] = mails.map((m) => linkToken(m.text, "/password/reset"));
+    expect(payloadOf(await call(resetLoader, request(`/password/reset/${older}`), { token: older }))).toMatchObject({ valid: false, message: expect.stringMatching(/newest reset e-mail/) });
+    expect(payloadOf(await call(resetLoader, request(`/password/reset/${newer}`), { token: newer }))).toMatchObject({ valid: true });
+  });
+});
+
+describe("sign-in attempts", () => {
+  test("attempts older than a day are pruned when a new one is recorded", async () => {
+    const old = await SignInAttempt.create({ email: "old-attempt@demo.ratebook.invalid", ip: "unknown", succeeded: false });
+    await SignInAttempt.update({ createdAt: new Date(Date.now() - KEEP_ATTEMPTS_MS - 60_000) }, { where: { id: old.id }, silent: true });
+    await recordAttempt("fresh-attempt@demo.ratebook.invalid", "unknown", false);
+    expect(await SignInAttempt.count({ where: { id: old.id } })).toBe(0);
+    expect(await SignInAttempt.count({ where: { email: "fresh-attempt@demo.ratebook.invalid", createdAt: { [Op.gt]: new Date(Date.now() - 60_000) } } })).toBe(1);
+  });
+});
