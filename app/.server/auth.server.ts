@@ -25,7 +25,14 @@ export function normaliseEmail(raw: unknown) {
   return String(raw ?? "").trim().toLowerCase();
 }
 
-export const EMAIL_PATTERN = /^[^\s@]+@[^\s@]+\.[^\s@]+$/;
+const EMAIL_PATTERN = /^[^\s@]+@[^\s@]+\.[^\s@]+$/;
+
+/** The message for an e-mail field, or null when it will do; `whose` names the owner ("your"). */
+export function emailProblem(email: string, whose = "your"): string | null {
+  if (!email) return `Enter ${whose} e-mail address.`;
+  if (!EMAIL_PATTERN.test(email) || email.length > 254) return "That does not look like an e-mail address.";
+  return null;
+}
 
 export const authenticator = new Authenticator<SignedInUser>();
 
@@ -33,8 +40,8 @@ authenticator.use(
   new FormStrategy(async ({ form, request }) => {
     const email = normaliseEmail(form.get("email"));
     const password = String(form.get("password") ?? "");
-    if (!email) throw new SignInError("Enter your e-mail address.", "email");
-    if (!EMAIL_PATTERN.test(email)) throw new SignInError("That does not look like an e-mail address.", "email");
+    const badEmail = emailProblem(email);
+    if (badEmail) throw new SignInError(badEmail, "email");
     if (!password) throw new SignInError("Enter your password.", "password");
 
     const ip = clientAddress(request);

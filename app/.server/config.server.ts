@@ -15,7 +15,6 @@ export const config = {
   /** The local mail sink's read API; unset in production, where mail goes to a real server. */
   mailSinkUrl: process.env.MAIL_SINK_URL ?? (process.env.SMTP_URL ? null : `http://127.0.0.1:${int("MAIL_SINK_HTTP_PORT", 2526)}`),
   appUrl: (process.env.APP_URL ?? `http://localhost:${int("PORT", 3000)}`).replace(/\/$/, ""),
-  production: process.env.NODE_ENV === "production",
   /** Secure cookies need HTTPS; on by default in production, off for the local http demo. */
   secureCookies: process.env.SESSION_COOKIE_SECURE ? process.env.SESSION_COOKIE_SECURE === "1" : process.env.NODE_ENV === "production",
   /** Behind a load balancer, trust X-Forwarded-For for the client address (sign-in throttling). */

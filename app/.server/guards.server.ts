@@ -14,11 +14,23 @@ function deny(status: 401 | 403, message: string, api: boolean): never {
   throw data({ message }, { status });
 }
 
-export async function currentUser(request: Request): Promise<User | null> {
+// The layout's loader and the page's loader get the same Request: look the person up once.
+const usersByRequest = new WeakMap<Request, Promise<User | null>>();
+
+export function currentUser(request: Request): Promise<User | null> {
+  let user = usersByRequest.get(request);
+  if (!user) {
+    user = lookUpUser(request);
+    usersByRequest.set(request, user);
+  }
+  return user;
+}
+
+async function lookUpUser(request: Request): Promise<User | null> {
   const session = await getSession(request);
   const userId = session.get("userId");
   if (!userId) return null;
-  // Re-read every time, so a changed role or a removed account takes effect at once.
+  // Read on every request, so a changed role or a removed account takes effect at once.
   return User.findByPk(userId);
 }
 

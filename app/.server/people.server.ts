@@ -1,22 +1,16 @@
 // Invitations, password resets and role changes. Each change of a role is audited in the
 // same transaction as the change.
-import { sequelize, User, Course, CourseMembership, type CourseRole, type Role, COURSE_ROLES, ROLES } from "./db/models.server";
-import { issueToken, checkToken, consumeToken } from "./tokens.server";
+import type { Transaction } from "sequelize";
+import { sequelize, User, Course, CourseMembership, type CourseRole, type Role, type TokenPurpose, COURSE_ROLES, ROLES } from "./db/models.server";
+import { issueToken, checkToken, consumeToken, tokenMessage } from "./tokens.server";
 import { checkNewPassword, hashPassword, verifyPassword } from "./passwords.server";
 import { recordAudit } from "./audit.server";
 import { sendMail } from "./mail.server";
 import { config } from "./config.server";
-import { EMAIL_PATTERN, normaliseEmail } from "./auth.server";
+import { emailProblem, normaliseEmail } from "./auth.server";
 
 export type FieldErrors = Partial<Record<string, string>>;
 export type Outcome<T = undefined> = { ok: true; value: T } | { ok: false; errors: FieldErrors };
-
-// A global role that fits a course role, for people who are new to Ratebook.
-const GLOBAL_ROLE_FOR: Record<CourseRole, Role> = {
-  instructor: "instructor",
-  demonstrator: "demonstrator",
-  student: "student",
-};
 
 export interface InvitationInput {
   email: unknown;
@@ -30,8 +24,8 @@ export async function inviteToCourse(actor: User, courseId: number, input: Invit
   const displayName = String(input.displayName ?? "").trim();
   const role = String(input.role ?? "") as CourseRole;
   const errors: FieldErrors = {};
-  if (!email) errors.email = "Enter the person's e-mail address.";
-  else if (!EMAIL_PATTERN.test(email) || email.length > 254) errors.email = "That does not look like an e-mail address.";
+  const badEmail = emailProblem(email, "the person's");
+  if (badEmail) errors.email = badEmail;
   if (!displayName) errors.displayName = "Enter the name to show for this person.";
   else if (displayName.length > 120) errors.displayName = "Use at most 120 characters.";
   if (!COURSE_ROLES.includes(role)) errors.role = `Choose one of: ${COURSE_ROLES.join(", ")}.`;
@@ -43,16 +37,13 @@ export async function inviteToCourse(actor: User, courseId: number, input: Invit
   await sequelize.transaction(async (transaction) => {
     let user = await User.findOne({ where: { email }, transaction });
     if (!user) {
-      user = await User.create({ email, displayName, role: GLOBAL_ROLE_FOR[role], passwordHash: null }, { transaction });
+      // A person new to Ratebook gets the site-wide role named like their course role.
+      user = await User.create({ email, displayName, role, passwordHash: null }, { transaction });
       await recordAudit({ actorId: actor.id, action: "user.invited", entityType: "user", entityId: user.id, after: { email, role: user.role } }, transaction);
     }
     const existing = await CourseMembership.findOne({ where: { courseId, userId: user.id }, transaction });
     if (existing) {
-      if (existing.role !== role) {
-        const before = { role: existing.role };
-        await existing.update({ role }, { transaction });
-        await recordAudit({ actorId: actor.id, action: "membership.role-changed", entityType: "course_membership", entityId: existing.id, before, after: { role } }, transaction);
-      }
+      await setMembershipRole(actor, existing, role, transaction);
     } else {
       const m = await CourseMembership.create({ courseId, userId: user.id, role }, { transaction });
       await recordAudit({ actorId: actor.id, action: "membership.added", entityType: "course_membership", entityId: m.id, after: { courseId, userId: user.id, role } }, transaction);
@@ -73,33 +64,48 @@ export async function inviteToCourse(actor: User, courseId: number, input: Invit
   return { ok: true, value: { invited: token !== null } };
 }
 
-/** Sets the password of an invited person and marks the invitation used. */
-export async function acceptInvitation(rawToken: string, input: { password: unknown; confirm: unknown; displayName?: unknown }): Promise<Outcome<User>> {
+/**
+ * Uses a one-time token to set a password: the token is checked first, then the fields, then the
+ * token is consumed and `apply` runs in one transaction (a concurrent second use fails).
+ */
+async function redeemToken(
+  rawToken: string,
+  purpose: TokenPurpose,
+  input: { password: unknown; confirm: unknown },
+  fieldErrors: FieldErrors,
+  apply: (user: User, passwordHash: string, transaction: Transaction) => Promise<unknown>,
+): Promise<Outcome<User>> {
+  const check = await checkToken(rawToken, purpose);
+  if (!check.ok) return { ok: false, errors: { form: check.message } };
   const password = String(input.password ?? "");
   const pwError = checkNewPassword(password, String(input.confirm ?? ""));
-  const name = input.displayName === undefined ? null : String(input.displayName).trim();
-  const errors: FieldErrors = {};
-  if (pwError) errors.password = pwError;
-  if (name !== null && !name) errors.displayName = "Enter your name.";
-  const check = await checkToken(rawToken, "invitation");
-  if (!check.ok) return { ok: false, errors: { form: check.message } };
+  const errors: FieldErrors = { ...fieldErrors, ...(pwError ? { password: pwError } : {}) };
   if (Object.keys(errors).length) return { ok: false, errors };
   const passwordHash = await hashPassword(password);
   const done = await sequelize.transaction(async (transaction) => {
     if (!(await consumeToken(check.token, transaction))) return false;
-    await check.user.update({ passwordHash, ...(name ? { displayName: name } : {}) }, { transaction });
-    await recordAudit({ actorId: check.user.id, action: "user.invitation-accepted", entityType: "user", entityId: check.user.id }, transaction);
+    await apply(check.user, passwordHash, transaction);
     return true;
   });
-  if (!done) return { ok: false, errors: { form: "This invitation has already been accepted. Sign in with your e-mail and password." } };
+  if (!done) return { ok: false, errors: { form: tokenMessage(purpose, "used") } };
   return { ok: true, value: check.user };
+}
+
+/** Sets the password (and name) of an invited person and marks the invitation used. */
+export function acceptInvitation(rawToken: string, input: { password: unknown; confirm: unknown; displayName?: unknown }): Promise<Outcome<User>> {
+  const name = input.displayName === undefined ? null : String(input.displayName).trim();
+  const fieldErrors: FieldErrors = name !== null && !name ? { displayName: "Enter your name." } : {};
+  return redeemToken(rawToken, "invitation", input, fieldErrors, async (user, passwordHash, transaction) => {
+    await user.update({ passwordHash, ...(name ? { displayName: name } : {}) }, { transaction });
+    await recordAudit({ actorId: user.id, action: "user.invitation-accepted", entityType: "user", entityId: user.id }, transaction);
+  });
 }
 
 /** Always reports success to the caller, so the form cannot be used to find accounts. */
 export async function requestPasswordReset(rawEmail: unknown): Promise<Outcome> {
   const email = normaliseEmail(rawEmail);
-  if (!email) return { ok: false, errors: { email: "Enter your e-mail address." } };
-  if (!EMAIL_PATTERN.test(email)) return { ok: false, errors: { email: "That does not look like an e-mail address." } };
+  const badEmail = emailProblem(email);
+  if (badEmail) return { ok: false, errors: { email: badEmail } };
   const user = await User.findOne({ where: { email } });
   if (user) {
     const token = await issueToken(user.id, "password-reset", null);
@@ -115,21 +121,11 @@ export async function requestPasswordReset(rawEmail: unknown): Promise<Outcome> 
   return { ok: true, value: undefined };
 }
 
-export async function resetPassword(rawToken: string, input: { password: unknown; confirm: unknown }): Promise<Outcome<User>> {
-  const check = await checkToken(rawToken, "password-reset");
-  if (!check.ok) return { ok: false, errors: { form: check.message } };
-  const password = String(input.password ?? "");
-  const pwError = checkNewPassword(password, String(input.confirm ?? ""));
-  if (pwError) return { ok: false, errors: { password: pwError } };
-  const passwordHash = await hashPassword(password);
-  const done = await sequelize.transaction(async (transaction) => {
-    if (!(await consumeToken(check.token, transaction))) return false;
-    await check.user.update({ passwordHash }, { transaction });
-    await recordAudit({ actorId: check.user.id, action: "user.password-reset", entityType: "user", entityId: check.user.id }, transaction);
-    return true;
+export function resetPassword(rawToken: string, input: { password: unknown; confirm: unknown }): Promise<Outcome<User>> {
+  return redeemToken(rawToken, "password-reset", input, {}, async (user, passwordHash, transaction) => {
+    await user.update({ passwordHash }, { transaction });
+    await recordAudit({ actorId: user.id, action: "user.password-reset", entityType: "user", entityId: user.id }, transaction);
   });
-  if (!done) return { ok: false, errors: { form: "This reset link has already been used. Ask for a new one if you still need it." } };
-  return { ok: true, value: check.user };
 }
 
 /** Admin only: changes a person's Ratebook-wide role. */
@@ -160,11 +156,17 @@ export async function changeMembershipRole(actor: User, courseId: number, member
       const instructors = await CourseMembership.count({ where: { courseId, role: "instructor" }, transaction });
       if (instructors <= 1) return { ok: false as const, errors: { role: "A course needs at least one instructor; add another before changing your own role." } };
     }
-    const before = { role: m.role };
-    await m.update({ role }, { transaction });
-    await recordAudit({ actorId: actor.id, action: "membership.role-changed", entityType: "course_membership", entityId: m.id, before, after: { role } }, transaction);
+    await setMembershipRole(actor, m, role, transaction);
     return { ok: true as const, value: undefined };
   });
+}
+
+/** Changes a course role and audits it in the caller's transaction; no-op when unchanged. */
+async function setMembershipRole(actor: User, m: CourseMembership, role: CourseRole, transaction: Transaction) {
+  if (m.role === role) return;
+  const before = { role: m.role };
+  await m.update({ role }, { transaction });
+  await recordAudit({ actorId: actor.id, action: "membership.role-changed", entityType: "course_membership", entityId: m.id, before, after: { role } }, transaction);
 }
 
 /** A signed-in person changes their own password; the current one must be given. */

@@ -53,6 +53,10 @@ const REASON_TEXT: Record<TokenPurpose, Record<"unknown" | "used" | "expired", s
   },
 };
 
+export function tokenMessage(purpose: TokenPurpose, reason: "unknown" | "used" | "expired") {
+  return REASON_TEXT[purpose][reason];
+}
+
 /** Looks a token up without using it. */
 export async function checkToken(raw: string, purpose: TokenPurpose, now = new Date()): Promise<TokenCheck> {
   const token = raw ? await AuthToken.findOne({ where: { tokenHash: digest(raw), purpose }, include: [{ model: User, as: "user" }] }) : null;
