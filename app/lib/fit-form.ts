@@ -86,7 +86,7 @@ export function parsePoints(text: string): ParsedPoints {
     const cells = row.map((c) => c.trim());
     if (cells.every((c) => c === "")) return;
     // A first line that is not numeric is a header such as "time, conductivity".
-    if (out.points.length === 0 && out.problems.length === 0 && toNumber(cells[0] ?? "") === null && i === 0) return;
+    if (i === 0 && toNumber(cells[0] ?? "") === null) return;
     if (cells.length < 2) {
       out.problems.push({ field: "data", message: `Line ${line}: expected two columns (time, value), found one: "${cells[0]}".` });
       return;
@@ -153,9 +153,6 @@ export function buildFitRequest(values: FitFormValues): { request: Record<string
     if (tol !== undefined) reference.tolerancePct = tol;
     request.reference = reference;
   }
-  // Drop unset optional feed entries so the engine's own checks speak about what was typed.
-  const feed = request.feed as Record<string, unknown>;
-  if (feed.CB0 === undefined) delete feed.CB0;
   return { request, lines: parsed.lines, problems };
 }
 

@@ -1,9 +1,10 @@
-import { data, useFetcher } from "react-router";
+import { data } from "react-router";
 import type { Route } from "./+types/admin-people";
 import { requireUser } from "~/.server/guards.server";
-import { changeUserRole } from "~/.server/people.server";
+import { changeUserRole, type FieldErrors } from "~/.server/people.server";
 import { ROLES, User } from "~/.server/db/models.server";
 import { PageTitle } from "~/components/page";
+import { RoleSelect } from "~/components/role-select";
 
 export const meta: Route.MetaFunction = () => [{ title: "People · Ratebook" }];
 
@@ -21,23 +22,8 @@ export async function action({ request }: Route.ActionArgs) {
   const me = await requireUser(request, { roles: ["admin"] });
   const form = await request.formData();
   const result = await changeUserRole(me, Number(form.get("userId")), form.get("role"));
-  if (!result.ok) return data({ error: result.errors.role ?? result.errors.form ?? "Not changed." }, { status: 400 });
-  return { error: null };
-}
-
-function RoleCell({ userId, role, roles, name }: { userId: number; role: string; roles: readonly string[]; name: string }) {
-  const fetcher = useFetcher<typeof action>();
-  return (
-    <fetcher.Form method="post" className="flex items-center gap-2">
-      <input type="hidden" name="userId" value={userId} />
-      <label className="sr-only" htmlFor={`urole-${userId}`}>Role of {name}</label>
-      <select id={`urole-${userId}`} name="role" defaultValue={role} className="rounded border border-ink-soft bg-white px-2 py-1" onChange={(e) => fetcher.submit(e.currentTarget.form)}>
-        {roles.map((r) => <option key={r} value={r}>{r}</option>)}
-      </select>
-      {fetcher.state !== "idle" ? <span className="text-sm text-ink-soft">saving…</span> : null}
-      {fetcher.data?.error ? <span role="alert" className="text-sm font-bold text-bad">✕ {fetcher.data.error}</span> : null}
-    </fetcher.Form>
-  );
+  const errors: FieldErrors = result.ok ? {} : result.errors;
+  return data({ errors }, { status: result.ok ? 200 : 400 });
 }
 
 export default function AdminPeople({ loaderData }: Route.ComponentProps) {
@@ -56,7 +42,7 @@ export default function AdminPeople({ loaderData }: Route.ComponentProps) {
             <tr key={u.id} className="border-b border-rule">
               <td className="px-3 py-2">{u.name}{u.id === loaderData.meId ? " (you)" : ""}</td>
               <td className="px-3 py-2">{u.email}</td>
-              <td className="px-3 py-2"><RoleCell userId={u.id} role={u.role} roles={loaderData.roles} name={u.name} /></td>
+              <td className="px-3 py-2"><RoleSelect id={`urole-${u.id}`} label={`Role of ${u.name}`} role={u.role} roles={loaderData.roles} fields={{ userId: u.id }} /></td>
               <td className="px-3 py-2">{u.active ? "● active" : "◔ invited"}</td>
               <td className="px-3 py-2">{u.since}</td>
             </tr>

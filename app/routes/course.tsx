@@ -1,4 +1,4 @@
-import { data, Form, useFetcher, useNavigation } from "react-router";
+import { data, Form, useNavigation } from "react-router";
 import type { Route } from "./+types/course";
 import { requireCourseRole, requireUser } from "~/.server/guards.server";
 import { courseMembers } from "~/.server/courses.server";
@@ -6,6 +6,7 @@ import { changeMembershipRole, inviteToCourse, type FieldErrors } from "~/.serve
 import { Course, COURSE_ROLES } from "~/.server/db/models.server";
 import { Button, Field, FormMessage, SelectField } from "~/components/form";
 import { PageTitle } from "~/components/page";
+import { RoleSelect } from "~/components/role-select";
 
 export const meta: Route.MetaFunction = ({ data }) => [{ title: `${data?.course.code ?? "Course"} · Ratebook` }];
 
@@ -57,29 +58,6 @@ export async function action({ request, params }: Route.ActionArgs) {
   throw data({ message: `Unknown action "${String(intent)}".` }, { status: 400 });
 }
 
-function RoleSelect({ membershipId, role, roles, name }: { membershipId: number; role: string; roles: readonly string[]; name: string }) {
-  const fetcher = useFetcher<typeof action>();
-  const error = fetcher.data?.errors.role ?? fetcher.data?.errors.form;
-  return (
-    <fetcher.Form method="post" className="flex items-center gap-2">
-      <input type="hidden" name="intent" value="change-role" />
-      <input type="hidden" name="membershipId" value={membershipId} />
-      <label className="sr-only" htmlFor={`role-${membershipId}`}>Role of {name}</label>
-      <select
-        id={`role-${membershipId}`}
-        name="role"
-        defaultValue={role}
-        className="rounded border border-ink-soft bg-white px-2 py-1"
-        onChange={(e) => fetcher.submit(e.currentTarget.form)}
-      >
-        {roles.map((r) => <option key={r} value={r}>{r}</option>)}
-      </select>
-      {fetcher.state !== "idle" ? <span className="text-sm text-ink-soft">saving…</span> : null}
-      {error ? <span role="alert" className="text-sm font-bold text-bad">✕ {error}</span> : null}
-    </fetcher.Form>
-  );
-}
-
 export default function CoursePage({ loaderData, actionData }: Route.ComponentProps) {
   const { course, myRole, members, roles } = loaderData;
   const busy = useNavigation().state === "submitting";
@@ -108,7 +86,7 @@ export default function CoursePage({ loaderData, actionData }: Route.ComponentPr
                   <td className="px-3 py-2">{m.name}{m.isMe ? " (you)" : ""}</td>
                   {myRole !== "student" ? <td className="px-3 py-2">{m.email}</td> : null}
                   <td className="px-3 py-2">
-                    {isInstructor ? <RoleSelect membershipId={m.id} role={m.role} roles={roles} name={m.name} /> : m.role}
+                    {isInstructor ? <RoleSelect id={`role-${m.id}`} label={`Role of ${m.name}`} role={m.role} roles={roles} fields={{ intent: "change-role", membershipId: m.id }} /> : m.role}
                   </td>
                   <td className="px-3 py-2">{m.pending ? "◔ invited, not yet joined" : "● active"}</td>
                 </tr>
