@@ -4,7 +4,7 @@ import fs from "node:fs";
 import path from "node:path";
 import { afterAll, beforeAll, describe, expect, test } from "vitest";
 import { chromium, type Browser, type Page } from "playwright-core";
-import { CHROMIUM_ARGS, CHROMIUM_PATH, startAppServer } from "./app-server";
+import { CHROMIUM_ARGS, CHROMIUM_PATH, signIn, startAppServer } from "./harness";
 
 const shots = path.resolve(import.meta.dirname, "..", "..", "test-results");
 let server: Awaited<ReturnType<typeof startAppServer>>;
@@ -17,9 +17,7 @@ beforeAll(async () => {
   browser = await chromium.launch({ executablePath: CHROMIUM_PATH, args: CHROMIUM_ARGS });
   page = await browser.newPage({ viewport: { width: 1280, height: 900 } });
   await page.goto(`${server.url}/sign-in?returnTo=%2Ffit-check`);
-  await page.getByLabel("E-mail").fill("instructor@demo.ratebook.invalid");
-  await page.getByLabel("Password").fill("demo-instructor-pass");
-  await page.getByRole("button", { name: "Sign in" }).click();
+  await signIn(page, "instructor@demo.ratebook.invalid", "demo-instructor-pass");
   await page.waitForURL(`${server.url}/fit-check`);
 }, 180_000);
 

@@ -4,7 +4,7 @@ import fs from "node:fs";
 import path from "node:path";
 import { afterAll, beforeAll, describe, expect, test } from "vitest";
 import { chromium, type Browser } from "playwright-core";
-import { CHROMIUM_ARGS, CHROMIUM_PATH, startAppServer } from "./app-server";
+import { CHROMIUM_ARGS, CHROMIUM_PATH, signIn, startAppServer } from "./harness";
 
 const shots = path.resolve(import.meta.dirname, "..", "..", "test-results");
 let server: Awaited<ReturnType<typeof startAppServer>>;
@@ -24,15 +24,13 @@ afterAll(async () => {
   server?.stop();
 });
 
-async function signIn(page: import("playwright-core").Page, email: string, password: string) {
-  await page.getByLabel("E-mail").fill(email);
-  await page.getByLabel("Password").fill(password);
-  await page.getByRole("button", { name: "Sign in" }).click();
-}
-
 describe("browser", () => {
   test("the demo instructor signs in and sees the dashboard", async () => {
     const page = await browser.newPage({ viewport: { width: 1280, height: 800 } });
+    const offHost: string[] = [];
+    page.on("request", (r) => {
+      if (!r.url().startsWith(server.url) && !r.url().startsWith("data:")) offHost.push(r.url());
+    });
     await page.goto(`${server.url}/dashboard`);
     await expect.poll(() => new URL(page.url()).pathname).toBe("/sign-in");
     expect(new URL(page.url()).searchParams.get("returnTo")).toBe("/dashboard");
@@ -49,9 +47,13 @@ describe("browser", () => {
     expect(await page.getByRole("link", { name: "KIN-DEMO" }).count()).toBe(1);
     expect(await page.locator("header").textContent()).toContain("instructor");
     expect(await page.getByRole("navigation", { name: "Main" }).textContent()).toContain("New course");
-    // The font ships with the app: no request leaves for a font CDN.
-    const family = await page.evaluate(() => getComputedStyle(document.body).fontFamily);
-    expect(family).toContain("Atkinson Hyperlegible");
+    // The font ships with the app: it is loaded, and no request left the app's own host.
+    const fontLoaded = await page.evaluate(async () => {
+      await document.fonts.ready;
+      return document.fonts.check('16px "Atkinson Hyperlegible"') && [...document.fonts].some((f) => f.family.includes("Atkinson") && f.status === "loaded");
+    });
+    expect(fontLoaded).toBe(true);
+    expect(offHost).toEqual([]);
     await page.screenshot({ path: path.join(shots, "dashboard-instructor.png"), fullPage: true });
 
     await page.getByRole("link", { name: "KIN-DEMO" }).click();

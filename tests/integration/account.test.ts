@@ -1,30 +1,23 @@
 // Changing one's own password, replaced links, and pruning of old sign-in attempts.
 import { describe, expect, test } from "vitest";
 import { Op } from "sequelize";
-import { action as signIn } from "~/routes/sign-in";
 import { action as accountAction, loader as accountLoader } from "~/routes/account";
 import { action as forgotAction } from "~/routes/password-forgot";
 import { loader as resetLoader } from "~/routes/password-reset";
 import { AuditEntry, SignInAttempt, User } from "~/.server/db/models.server";
 import { hashPassword } from "~/.server/passwords.server";
 import { KEEP_ATTEMPTS_MS, recordAttempt } from "~/.server/throttle.server";
-import { call, cookieFrom, linkToken, mailTo, payloadOf, request, statusOf } from "./helpers";
+import { call, linkToken, payloadOf, request, signInAs, statusOf, waitForMail } from "./helpers";
 
 async function makeUser(email: string, password: string) {
   return User.create({ email, displayName: "Account test (test)", role: "demonstrator", passwordHash: await hashPassword(password) });
-}
-
-async function signInCookie(email: string, password: string) {
-  const res = await call(signIn, request("/sign-in", { form: { email, password } }));
-  expect(res.status).toBe(302);
-  return cookieFrom(res);
 }
 
 describe("own password", () => {
   test("needs the current password, a valid new one, and is audited", async () => {
     const email = "account-owner@demo.ratebook.invalid";
     const user = await makeUser(email, "first-password-1");
-    const cookie = await signInCookie(email, "first-password-1");
+    const cookie = await signInAs(email, "first-password-1");
     expect(payloadOf(await call(accountLoader, request("/account", { cookie })))).toMatchObject({ email, role: "demonstrator" });
 
     const wrong = await call(accountAction, request("/account", { cookie, form: { current: "nope-nope-nope", password: "second-password-2", confirm: "second-password-2" } }));
@@ -35,7 +28,7 @@ describe("own password", () => {
 
     const ok = await call(accountAction, request("/account", { cookie, form: { current: "first-password-1", password: "second-password-2", confirm: "second-password-2" } }));
     expect(payloadOf(ok).changed).toBe(true);
-    await signInCookie(email, "second-password-2");
+    await signInAs(email, "second-password-2");
     expect(await AuditEntry.count({ where: { action: "user.password-changed", entityId: String(user.id) } })).toBe(1);
   });
 
@@ -51,11 +44,7 @@ describe("a new link replaces the older one", () => {
     await makeUser(email, "some-password-1");
     await call(forgotAction, request("/password/forgot", { form: { email } }));
     await call(forgotAction, request("/password/forgot", { form: { email } }));
-    let mails = await mailTo(email);
-    for (let i = 0; i < 50 && mails.length < 2; i++) {
-      await new Promise((r) => setTimeout(r, 50));
-      mails = await mailTo(email);
-    }
+    const mails = await waitForMail(email, 2);
     expect(mails).toHaveLength(2);
     const [older, newer] = mails.map((m) => linkToken(m.text, "/password/reset"));
     expect(payloadOf(await call(resetLoader, request(`/password/reset/${older}`), { token: older }))).toMatchObject({ valid: false, message: expect.stringMatching(/newest reset e-mail/) });

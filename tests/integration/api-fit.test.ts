@@ -1,12 +1,7 @@
 // The JSON fit API: the same engine as `npm run fit`, behind the role guard.
 import { describe, expect, test } from "vitest";
-import { action as signIn } from "~/routes/sign-in";
 import { action as fitAction } from "~/routes/api-fit";
-import { call, cookieFrom, request } from "./helpers";
-
-async function cookieFor(who: string) {
-  return cookieFrom(await call(signIn, request("/sign-in", { form: { email: `${who}@demo.ratebook.invalid`, password: `demo-${who}-pass` } })));
-}
+import { call, demoCookie } from "./helpers";
 
 function post(body: string, cookie?: string) {
   const headers: Record<string, string> = { "Content-Type": "application/json" };
@@ -30,11 +25,11 @@ const good = {
 describe("POST /api/fit", () => {
   test("signed out: 401; a student: 403", async () => {
     expect((await call(fitAction, post(JSON.stringify(good)))).status).toBe(401);
-    expect((await call(fitAction, post(JSON.stringify(good), await cookieFor("student")))).status).toBe(403);
+    expect((await call(fitAction, post(JSON.stringify(good), await demoCookie("student")))).status).toBe(403);
   });
 
   test("an instructor gets the fit: stoichiometric model, k recovered from exact data", async () => {
-    const res = await call(fitAction, post(JSON.stringify(good), await cookieFor("instructor")));
+    const res = await call(fitAction, post(JSON.stringify(good), await demoCookie("instructor")));
     expect(res.status).toBe(200);
     const body = await res.json();
     expect(body.model).toBe("second-order-AB-stoichiometric");
@@ -44,7 +39,7 @@ describe("POST /api/fit", () => {
   });
 
   test("bad JSON and invalid requests get 400 with every problem and its place", async () => {
-    const cookie = await cookieFor("instructor");
+    const cookie = await demoCookie("instructor");
     const notJson = await call(fitAction, post("{ nope", cookie));
     expect(notJson.status).toBe(400);
     expect((await notJson.json()).errors[0].message).toMatch(/not valid JSON/);

@@ -1,18 +1,11 @@
 // Role guards: pages redirect or show 403, API routes answer 401/403 JSON.
 import { describe, expect, test } from "vitest";
-import { action as signIn } from "~/routes/sign-in";
 import { loader as newCourseLoader, action as newCourseAction } from "~/routes/course-new";
 import { loader as peopleLoader } from "~/routes/admin-people";
 import { loader as courseLoader, action as courseAction } from "~/routes/course";
 import { loader as meLoader } from "~/routes/api-me";
 import { loader as dashboardLoader } from "~/routes/dashboard";
-import { call, cookieFrom, payloadOf, request, statusOf } from "./helpers";
-
-async function cookieFor(who: "admin" | "instructor" | "demonstrator" | "student") {
-  const res = await call(signIn, request("/sign-in", { form: { email: `${who}@demo.ratebook.invalid`, password: `demo-${who}-pass` } }));
-  expect(res.status).toBe(302);
-  return cookieFrom(res);
-}
+import { call, demoCookie, payloadOf, request, statusOf } from "./helpers";
 
 describe("role guards", () => {
   test("signed-out visitor to a page is sent to sign-in with a return address", async () => {
@@ -28,7 +21,7 @@ describe("role guards", () => {
   });
 
   test("a student gets 403 on instructor pages and actions", async () => {
-    const cookie = await cookieFor("student");
+    const cookie = await demoCookie("student");
     const page = await call(newCourseLoader, request("/courses/new", { cookie }));
     expect(statusOf(page)).toBe(403);
     expect(payloadOf(page).message).toMatch(/signed in as student/);
@@ -39,7 +32,7 @@ describe("role guards", () => {
   });
 
   test("an instructor gets 403 on admin pages but may create a course", async () => {
-    const cookie = await cookieFor("instructor");
+    const cookie = await demoCookie("instructor");
     expect(statusOf(await call(peopleLoader, request("/admin/people", { cookie })))).toBe(403);
     const created = await call(newCourseAction, request("/courses/new", { cookie, form: { code: "GUARD-1", title: "Guard test course", term: "" } }));
     expect(created.status).toBe(302);
@@ -47,27 +40,27 @@ describe("role guards", () => {
   });
 
   test("course pages need membership; unknown course is 404", async () => {
-    const instructor = await cookieFor("instructor");
+    const instructor = await demoCookie("instructor");
     const created = await call(newCourseAction, request("/courses/new", { cookie: instructor, form: { code: "GUARD-2", title: "Private course", term: "" } }));
     const id = created.headers.get("Location")!.split("/").pop()!;
-    const student = await cookieFor("student");
+    const student = await demoCookie("student");
     expect(statusOf(await call(courseLoader, request(`/courses/${id}`, { cookie: student }), { courseId: id }))).toBe(403);
     expect(statusOf(await call(courseLoader, request(`/courses/999999`, { cookie: instructor }), { courseId: "999999" }))).toBe(404);
     expect(statusOf(await call(courseLoader, request(`/courses/abc`, { cookie: instructor }), { courseId: "abc" }))).toBe(404);
   });
 
   test("admin may open admin pages; API returns the person and their courses", async () => {
-    const admin = await cookieFor("admin");
+    const admin = await demoCookie("admin");
     const people = payloadOf(await call(peopleLoader, request("/admin/people", { cookie: admin })));
     expect(people.users.some((u: { email: string }) => u.email === "student@demo.ratebook.invalid")).toBe(true);
-    const student = await cookieFor("student");
+    const student = await demoCookie("student");
     const me = await (await call(meLoader, request("/api/me", { cookie: student }))).json();
     expect(me.user).toMatchObject({ email: "student@demo.ratebook.invalid", role: "student" });
     expect(me.courses.map((c: { code: string }) => c.code)).toContain("KIN-DEMO");
   });
 
   test("course creation keeps the typed values and names the field on bad input", async () => {
-    const cookie = await cookieFor("instructor");
+    const cookie = await demoCookie("instructor");
     const res = await call(newCourseAction, request("/courses/new", { cookie, form: { code: "KIN-DEMO", title: "", term: "Spring" } }));
     expect(statusOf(res)).toBe(400);
     expect(payloadOf(res).errors).toMatchObject({ code: expect.stringMatching(/exists already/), title: "Enter the course title." });

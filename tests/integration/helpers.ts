@@ -1,5 +1,7 @@
 // Calls route loaders and actions the way the framework does, with real Requests.
 import { RouterContextProvider } from "react-router";
+import { expect } from "vitest";
+import { action as signInAction } from "~/routes/sign-in";
 
 const BASE = "http://127.0.0.1:3100";
 
@@ -56,4 +58,27 @@ export function linkToken(text: string, pathPrefix: string): string {
   const m = text.match(new RegExp(`${pathPrefix}/([A-Za-z0-9_-]+)`));
   if (!m) throw new Error(`no ${pathPrefix} link in: ${text}`);
   return m[1];
+}
+
+/** Signs in through the real action and returns the session cookie. */
+export async function signInAs(email: string, password: string): Promise<string> {
+  const res = await call(signInAction, request("/sign-in", { form: { email, password } }));
+  expect(res.status).toBe(302);
+  return cookieFrom(res);
+}
+
+/** Session cookie of a demo account (invented demo data, seeded by the global setup). */
+export function demoCookie(who: "admin" | "instructor" | "demonstrator" | "student") {
+  return signInAs(`${who}@demo.ratebook.invalid`, `demo-${who}-pass`);
+}
+
+/** Waits (up to 2.5 s) until the mail sink holds `count` messages to `email`; returns them all. */
+export async function waitForMail(email: string, count = 1): Promise<SinkMessage[]> {
+  let mails = await mailTo(email);
+  for (let i = 0; i < 50 && mails.length < count; i++) {
+    await new Promise((r) => setTimeout(r, 50));
+    mails = await mailTo(email);
+  }
+  if (mails.length < count) throw new Error(`expected ${count} mail(s) to ${email}, found ${mails.length}`);
+  return mails;
 }

@@ -6,24 +6,16 @@ import { loader as invitationLoader, action as invitationAction } from "~/routes
 import { action as forgotAction } from "~/routes/password-forgot";
 import { loader as resetLoader, action as resetAction } from "~/routes/password-reset";
 import { AuthToken, User, CourseMembership } from "~/.server/db/models.server";
-import { call, cookieFrom, linkToken, mailTo, payloadOf, request, statusOf } from "./helpers";
-
-async function instructorCookie() {
-  return cookieFrom(await call(signIn, request("/sign-in", { form: { email: "instructor@demo.ratebook.invalid", password: "demo-instructor-pass" } })));
-}
+import { call, demoCookie, linkToken, mailTo, payloadOf, request, statusOf, waitForMail } from "./helpers";
 
 async function invite(email: string, role = "student") {
-  const cookie = await instructorCookie();
+  const cookie = await demoCookie("instructor");
   return call(courseAction, request("/courses/1", { cookie, form: { intent: "invite", email, displayName: "Invitee (test)", role } }), { courseId: "1" });
 }
 
 async function latestLink(email: string, prefix: string) {
-  for (let i = 0; i < 50; i++) {
-    const mails = await mailTo(email);
-    if (mails.length) return linkToken(mails[mails.length - 1].text, prefix);
-    await new Promise((r) => setTimeout(r, 50));
-  }
-  throw new Error(`no mail reached ${email}`);
+  const mails = await waitForMail(email);
+  return linkToken(mails[mails.length - 1].text, prefix);
 }
 
 describe("invitation", () => {
@@ -71,7 +63,7 @@ describe("invitation", () => {
 
   test("an unknown token and bad invitation input give clear messages", async () => {
     expect(payloadOf(await call(invitationLoader, request("/invitation/nonsense"), { token: "nonsense" }))).toMatchObject({ valid: false, message: expect.stringMatching(/not valid/) });
-    const bad = await call(courseAction, request("/courses/1", { cookie: await instructorCookie(), form: { intent: "invite", email: "nope", displayName: "", role: "boss" } }), { courseId: "1" });
+    const bad = await call(courseAction, request("/courses/1", { cookie: await demoCookie("instructor"), form: { intent: "invite", email: "nope", displayName: "", role: "boss" } }), { courseId: "1" });
     expect(statusOf(bad)).toBe(400);
     expect(payloadOf(bad).errors).toMatchObject({ email: expect.any(String), displayName: expect.any(String), role: expect.stringMatching(/instructor, demonstrator, student/) });
     expect(payloadOf(bad).values).toMatchObject({ email: "nope" });

@@ -1,5 +1,7 @@
-// Starts the built app (react-router-serve) against the test database for browser tests.
+// Browser-test harness: the built app (react-router-serve) against the test database, the
+// chromium flags for this sandbox, and signing in through the real form.
 import { spawn, spawnSync, type ChildProcess } from "node:child_process";
+import type { Page } from "playwright-core";
 import fs from "node:fs";
 import path from "node:path";
 import { testEnv, TEST_APP_PORT } from "../setup/test-env";
@@ -43,4 +45,11 @@ export async function startAppServer(): Promise<{ url: string; stop: () => void 
   }
   child.kill("SIGTERM");
   throw new Error(`the app server did not start on ${url}:\n${output}`);
+}
+
+/** Fills and submits the sign-in form on the current page. */
+export async function signIn(page: Page, email: string, password: string) {
+  await page.getByLabel("E-mail").fill(email);
+  await page.getByLabel("Password").fill(password);
+  await page.getByRole("button", { name: "Sign in" }).click();
 }
