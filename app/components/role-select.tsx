@@ -1,11 +1,13 @@
 // A role picker that saves as soon as it changes (useFetcher, so the page does not reload),
-// with the saving state and any refusal shown beside it.
+// with the saving state and any refusal shown beside it. A refused change puts the saved role back.
+import { useEffect, useState } from "react";
 import { useFetcher } from "react-router";
 
 interface Props {
   id: string;
   /** accessible label, e.g. "Role of Kit" */
   label: string;
+  /** the role as saved */
   role: string;
   roles: readonly string[];
   /** hidden fields that tell the action what to change */
@@ -16,23 +18,33 @@ export function RoleSelect({ id, label, role, roles, fields }: Props) {
   // Both role actions answer { errors: { role?, form? } }.
   const fetcher = useFetcher<{ errors?: Partial<Record<string, string>> }>();
   const error = fetcher.data?.errors?.role ?? fetcher.data?.errors?.form;
+  const [value, setValue] = useState(role);
+  useEffect(() => {
+    if (fetcher.state === "idle") setValue(role);
+  }, [fetcher.state, fetcher.data, role]);
   return (
-    <fetcher.Form method="post" className="flex items-center gap-2">
-      {Object.entries(fields).map(([name, value]) => (
-        <input key={name} type="hidden" name={name} value={value} />
+    <fetcher.Form method="post" className="flex flex-wrap items-center gap-x-2 gap-y-1">
+      {Object.entries(fields).map(([name, v]) => (
+        <input key={name} type="hidden" name={name} value={v} />
       ))}
       <label className="sr-only" htmlFor={id}>{label}</label>
       <select
         id={id}
         name="role"
-        defaultValue={role}
+        value={value}
+        aria-describedby={error ? `${id}-error` : undefined}
         className="rounded border border-ink-soft bg-white px-2 py-1"
-        onChange={(e) => fetcher.submit(e.currentTarget.form)}
+        onChange={(e) => {
+          setValue(e.currentTarget.value);
+          fetcher.submit(e.currentTarget.form);
+        }}
       >
         {roles.map((r) => <option key={r} value={r}>{r}</option>)}
       </select>
       {fetcher.state !== "idle" ? <span className="text-sm text-ink-soft">saving…</span> : null}
-      {error ? <span role="alert" className="text-sm font-bold text-bad">✕ {error}</span> : null}
+      {error && fetcher.state === "idle" ? (
+        <p id={`${id}-error`} role="alert" className="basis-full text-sm font-bold text-bad">✕ {error}</p>
+      ) : null}
     </fetcher.Form>
   );
 }

@@ -59,6 +59,11 @@ describe("browser", () => {
     await page.getByRole("link", { name: "KIN-DEMO" }).click();
     await page.waitForURL(/\/courses\/\d+$/);
     await expect.poll(() => page.getByRole("heading", { name: "Add a person" }).count()).toBe(1);
+    // The only instructor cannot demote themself: the refusal shows and the saved role comes back.
+    const mine = page.getByLabel("Role of Dr Rowan Vale (demo instructor)");
+    await mine.selectOption("student");
+    await expect.poll(() => page.getByText("A course needs at least one instructor", { exact: false }).count()).toBe(1);
+    await expect.poll(() => mine.inputValue()).toBe("instructor");
     await page.screenshot({ path: path.join(shots, "course-instructor.png"), fullPage: true });
 
     await page.getByRole("button", { name: "Sign out" }).click();
