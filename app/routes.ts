@@ -1,29 +1,37 @@
+// The map of every URL, grouped by area. Route files live in folders by the same areas.
 import { type RouteConfig, index, layout, prefix, route } from "@react-router/dev/routes";
 
 export default [
   index("routes/home.tsx"),
-  route("sign-in", "routes/sign-in.tsx"),
-  route("sign-out", "routes/sign-out.tsx"),
-  route("invitation/:token", "routes/invitation.tsx"),
-  route("password/forgot", "routes/password-forgot.tsx"),
-  route("password/reset/:token", "routes/password-reset.tsx"),
 
-  // Everything below needs a signed-in person; the layout's loader checks it.
+  // Signing in and out, invitations and password resets (no session needed).
+  route("sign-in", "routes/auth/sign-in.tsx"),
+  route("sign-out", "routes/auth/sign-out.tsx"),
+  route("invitation/:token", "routes/auth/invitation.tsx"),
+  ...prefix("password", [
+    route("forgot", "routes/auth/password-forgot.tsx"),
+    route("reset/:token", "routes/auth/password-reset.tsx"),
+  ]),
+
+  // Everything below needs a signed-in person; the layout's loader checks it, and so does every
+  // child loader and action itself (loaders run in parallel).
   layout("routes/signed-in-layout.tsx", [
     route("dashboard", "routes/dashboard.tsx"),
     route("account", "routes/account.tsx"),
-    route("courses/new", "routes/course-new.tsx"),
-    route("fit-check", "routes/fit-check.tsx"),
-    route("courses/:courseId", "routes/course.tsx"),
+    ...prefix("courses", [
+      route("new", "routes/courses/new.tsx"),
+      route(":courseId", "routes/courses/course.tsx"),
+    ]),
+    route("fit-check", "routes/tools/fit-check.tsx"),
     ...prefix("admin", [
-      route("people", "routes/admin-people.tsx"),
-      route("mail", "routes/admin-mail.tsx"),
-      route("audit", "routes/admin-audit.tsx"),
+      route("people", "routes/admin/people.tsx"),
+      route("mail", "routes/admin/mail.tsx"),
+      route("audit", "routes/admin/audit.tsx"),
     ]),
   ]),
 
   // JSON API (resource routes).
-  ...prefix("api", [route("me", "routes/api-me.ts"), route("fit", "routes/api-fit.ts")]),
+  ...prefix("api", [route("me", "routes/api/me.ts"), route("fit", "routes/api/fit.ts")]),
 
   route("*", "routes/not-found.tsx"),
 ] satisfies RouteConfig;

@@ -2,8 +2,8 @@
 import { describe, expect, test } from "vitest";
 import { Op } from "sequelize";
 import { action as accountAction, loader as accountLoader } from "~/routes/account";
-import { action as forgotAction } from "~/routes/password-forgot";
-import { loader as resetLoader } from "~/routes/password-reset";
+import { action as forgotAction } from "~/routes/auth/password-forgot";
+import { loader as resetLoader } from "~/routes/auth/password-reset";
 import { AuditEntry, SignInAttempt, User } from "~/.server/db/models.server";
 import { hashPassword } from "~/.server/passwords.server";
 import { KEEP_ATTEMPTS_MS, recordAttempt } from "~/.server/throttle.server";

@@ -1,6 +1,6 @@
 // The JSON fit API: the same engine as `npm run fit`, behind the role guard.
 import { describe, expect, test } from "vitest";
-import { action as fitAction } from "~/routes/api-fit";
+import { action as fitAction } from "~/routes/api/fit";
 import { call, demoCookie } from "./helpers";
 
 function post(body: string, cookie?: string) {

@@ -1,9 +1,9 @@
 // Role guards: pages redirect or show 403, API routes answer 401/403 JSON.
 import { describe, expect, test } from "vitest";
-import { loader as newCourseLoader, action as newCourseAction } from "~/routes/course-new";
-import { loader as peopleLoader } from "~/routes/admin-people";
-import { loader as courseLoader, action as courseAction } from "~/routes/course";
-import { loader as meLoader } from "~/routes/api-me";
+import { loader as newCourseLoader, action as newCourseAction } from "~/routes/courses/new";
+import { loader as peopleLoader } from "~/routes/admin/people";
+import { loader as courseLoader, action as courseAction } from "~/routes/courses/course";
+import { loader as meLoader } from "~/routes/api/me";
 import { loader as dashboardLoader } from "~/routes/dashboard";
 import { call, demoCookie, payloadOf, request, statusOf } from "./helpers";
 

@@ -1,7 +1,7 @@
 // Calls route loaders and actions the way the framework does, with real Requests.
 import { RouterContextProvider } from "react-router";
 import { expect } from "vitest";
-import { action as signInAction } from "~/routes/sign-in";
+import { action as signInAction } from "~/routes/auth/sign-in";
 
 const BASE = "http://127.0.0.1:3100";
 

@@ -1,6 +1,6 @@
 // Sign-in through the real route action against the test database (demo data seeded).
 import { describe, expect, test } from "vitest";
-import { action as signIn, loader as signInLoader } from "~/routes/sign-in";
+import { action as signIn, loader as signInLoader } from "~/routes/auth/sign-in";
 import { GENERIC_FAILURE } from "~/.server/auth.server";
 import { THROTTLE } from "~/.server/throttle.server";
 import { User } from "~/.server/db/models.server";

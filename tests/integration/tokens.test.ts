@@ -1,10 +1,10 @@
 // Invitations and password resets: e-mail through the local sink, single use, expiry.
 import { describe, expect, test } from "vitest";
-import { action as signIn } from "~/routes/sign-in";
-import { action as courseAction } from "~/routes/course";
-import { loader as invitationLoader, action as invitationAction } from "~/routes/invitation";
-import { action as forgotAction } from "~/routes/password-forgot";
-import { loader as resetLoader, action as resetAction } from "~/routes/password-reset";
+import { action as signIn } from "~/routes/auth/sign-in";
+import { action as courseAction } from "~/routes/courses/course";
+import { loader as invitationLoader, action as invitationAction } from "~/routes/auth/invitation";
+import { action as forgotAction } from "~/routes/auth/password-forgot";
+import { loader as resetLoader, action as resetAction } from "~/routes/auth/password-reset";
 import { AuthToken, User, CourseMembership } from "~/.server/db/models.server";
 import { call, demoCookie, linkToken, mailTo, payloadOf, request, statusOf, waitForMail } from "./helpers";
 

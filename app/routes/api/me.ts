@@ -1,4 +1,4 @@
-import type { Route } from "./+types/api-me";
+import type { Route } from "./+types/me";
 import { requireUser } from "~/.server/guards.server";
 import { coursesFor } from "~/.server/courses.server";
 

@@ -1,4 +1,4 @@
-import type { Route } from "./+types/admin-mail";
+import type { Route } from "./+types/mail";
 import { requireUser } from "~/.server/guards.server";
 import { listSinkMessages } from "~/.server/mail.server";
 import { FormMessage } from "~/components/form";

@@ -1,4 +1,4 @@
-import type { Route } from "./+types/admin-audit";
+import type { Route } from "./+types/audit";
 import { requireUser } from "~/.server/guards.server";
 import { AuditEntry, User } from "~/.server/db/models.server";
 import { PageTitle } from "~/components/page";

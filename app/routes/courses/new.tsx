@@ -1,5 +1,5 @@
 import { data, Form, redirect, useNavigation } from "react-router";
-import type { Route } from "./+types/course-new";
+import type { Route } from "./+types/new";
 import { requireUser } from "~/.server/guards.server";
 import { createCourse } from "~/.server/courses.server";
 import { Button, Field } from "~/components/form";

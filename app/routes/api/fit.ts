@@ -1,4 +1,4 @@
-import type { Route } from "./+types/api-fit";
+import type { Route } from "./+types/fit";
 import { requireUser } from "~/.server/guards.server";
 import { runFit, validateFitRequest } from "~/lib/kinetics";
 

@@ -1,5 +1,5 @@
 import { data } from "react-router";
-import type { Route } from "./+types/admin-people";
+import type { Route } from "./+types/people";
 import { requireUser } from "~/.server/guards.server";
 import { changeUserRole, type FieldErrors } from "~/.server/people.server";
 import { ROLES, User } from "~/.server/db/models.server";
