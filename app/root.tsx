@@ -5,6 +5,8 @@ import "./app.css";
 
 export const meta: Route.MetaFunction = () => [{ title: "Ratebook" }];
 
+export const links: Route.LinksFunction = () => [{ rel: "icon", href: "/favicon.svg", type: "image/svg+xml" }];
+
 export function Layout({ children }: { children: React.ReactNode }) {
   return (
     <html lang="en">

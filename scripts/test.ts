@@ -1,23 +1,37 @@
 // `npm test` : every suite, then one plain summary line `N passed, N failed`.
 // Suites: typecheck (1 check), production build (1 check), vitest (unit, integration against a
-// real PostgreSQL and mail sink, browser tests in Debian's chromium).
+// real PostgreSQL and mail sink, browser tests in Debian's chromium). The verdict comes from
+// scripts/lib/test-summary.ts: any step that exits non-zero, writes no report or runs no test
+// makes the run red, and the reasons are repeated just above the last line.
+//
+// For the runner's own test: `--steps vitest` runs only the named steps (comma-separated), and
+// arguments after `--` go to vitest (e.g. one test file).
 import { spawnSync } from "node:child_process";
 import fs from "node:fs";
 import path from "node:path";
-import { projectRoot } from "./lib/postgres";
+import { clusterLocation, projectRoot, startLocalCluster } from "./lib/postgres";
+import { summarize, summaryLines, type StepResult, type VitestReport } from "./lib/test-summary";
 
 const bin = (name: string) => path.join(projectRoot, "node_modules", ".bin", name);
 const chromium = process.env.CHROMIUM_PATH ?? "/usr/bin/chromium";
-let passed = 0;
-let failed = 0;
 
-function step(name: string, cmd: string, args: string[]): boolean {
+const argv = process.argv.slice(2);
+const dashdash = argv.indexOf("--");
+const vitestExtra = dashdash >= 0 ? argv.slice(dashdash + 1) : [];
+const own = dashdash >= 0 ? argv.slice(0, dashdash) : argv;
+const stepsArg = own.includes("--steps") ? own[own.indexOf("--steps") + 1] : "typecheck,build,vitest";
+const wanted = new Set(stepsArg.split(","));
+
+const results: StepResult[] = [];
+const setupProblems: string[] = [];
+
+function run(name: string, cmd: string, args: string[]) {
   console.log(`\n=== ${name}: ${path.basename(cmd)} ${args.join(" ")}`);
   const t0 = Date.now();
   const res = spawnSync(cmd, args, { cwd: projectRoot, stdio: "inherit" });
-  const ok = res.status === 0;
+  const ok = res.status === 0 && !res.signal;
   console.log(`=== ${name}: ${ok ? "passed" : "FAILED"} in ${((Date.now() - t0) / 1000).toFixed(1)} s`);
-  return ok;
+  return { status: res.error ? null : res.status, signal: res.signal };
 }
 
 function ensureChromium() {
@@ -32,36 +46,47 @@ function ensureChromium() {
 }
 
 const t0 = Date.now();
-ensureChromium();
-
-for (const [name, args] of [
-  ["typecheck", ["-c", `"${bin("react-router")}" typegen && "${bin("tsc")}"`]],
-  ["build", ["-c", `"${bin("react-router")}" build`]],
-] as const) {
-  if (step(name, "sh", [...args])) passed++;
-  else failed++;
-}
-
-const report = path.join(projectRoot, ".data", "vitest-report.json");
-fs.mkdirSync(path.dirname(report), { recursive: true });
-fs.rmSync(report, { force: true });
-step("vitest", bin("vitest"), ["run", "--config", "tests/vitest.config.ts", "--reporter=default", "--reporter=json", `--outputFile=${report}`]);
-if (fs.existsSync(report)) {
-  const r = JSON.parse(fs.readFileSync(report, "utf8")) as { numPassedTests: number; numFailedTests: number; testResults: Array<{ status: string; name: string; message?: string }> };
-  passed += r.numPassedTests;
-  failed += r.numFailedTests;
-  // A file that fails before its tests run (import error, failed setup) counts as one failure.
-  for (const f of r.testResults) {
-    if (f.status === "failed" && (f as { assertionResults?: unknown[] }).assertionResults?.length === 0) {
-      failed++;
-      console.log(`[test] ${path.relative(projectRoot, f.name)} failed before its tests ran: ${f.message ?? ""}`);
+if (wanted.has("vitest")) {
+  ensureChromium();
+  // Start the cluster before vitest loads its config, so the test URL names the port it really
+  // uses (a clash with another clone can move it).
+  if (!process.env.DATABASE_URL && !process.env.TEST_DATABASE_URL) {
+    try {
+      const port = await startLocalCluster();
+      console.log(`[test] PostgreSQL for the tests: 127.0.0.1:${port}, data in ${clusterLocation.dataDir}`);
+    } catch (error) {
+      setupProblems.push(`PostgreSQL could not be started: ${(error as Error).message.split("\n")[0]}`);
+      console.log(`[test] PostgreSQL could not be started:\n${(error as Error).message}`);
     }
   }
-} else {
-  failed++;
-  console.log("[test] vitest wrote no report (it crashed or its setup failed)");
 }
 
+if (wanted.has("typecheck")) {
+  results.push({ kind: "command", name: "typecheck", ...run("typecheck", "sh", ["-c", `"${bin("react-router")}" typegen && "${bin("tsc")}"`]) });
+}
+if (wanted.has("build")) {
+  results.push({ kind: "command", name: "build", ...run("build", "sh", ["-c", `"${bin("react-router")}" build`]) });
+}
+if (wanted.has("vitest")) {
+  const report = path.join(projectRoot, ".data", `vitest-report-${process.pid}.json`);
+  fs.mkdirSync(path.dirname(report), { recursive: true });
+  fs.rmSync(report, { force: true });
+  const res = run("vitest", bin("vitest"), ["run", "--config", "tests/vitest.config.ts", "--reporter=default", "--reporter=json", `--outputFile=${report}`, ...vitestExtra]);
+  let parsed: VitestReport | null = null;
+  if (fs.existsSync(report)) {
+    try {
+      parsed = JSON.parse(fs.readFileSync(report, "utf8")) as VitestReport;
+    } catch {
+      parsed = null;
+    }
+    fs.rmSync(report, { force: true });
+  }
+  results.push({ kind: "vitest", name: "vitest", ...res, report: parsed });
+}
+
+const summary = summarize(results, (f) => path.relative(projectRoot, f));
+summary.reasons.unshift(...setupProblems);
+summary.failed += setupProblems.length;
 console.log(`\n[test] total time ${((Date.now() - t0) / 1000).toFixed(1)} s`);
-console.log(`${passed} passed, ${failed} failed`);
-process.exit(failed > 0 ? 1 : 0);
+for (const line of summaryLines(summary)) console.log(line);
+process.exit(summary.failed > 0 || summary.reasons.length > 0 ? 1 : 0);

@@ -13,8 +13,13 @@ export async function setup() {
   Object.assign(process.env, testEnv);
   if (!process.env.TEST_DATABASE_URL) {
     delete process.env.DATABASE_URL; // make ensurePostgres manage the local cluster
-    await ensurePostgres("ratebook_test", { reset: true });
-    process.env.DATABASE_URL = testEnv.DATABASE_URL;
+    const url = await ensurePostgres("ratebook_test", { reset: true });
+    // The config named the port before the cluster started; if a clash moved it, the tests would
+    // talk to another clone's cluster. Refuse rather than touch someone else's data.
+    if (url !== testEnv.DATABASE_URL) {
+      throw new Error(`The test cluster runs at ${url}, but the test configuration was built for ${testEnv.DATABASE_URL}. Run the tests again (npm test starts the cluster first).`);
+    }
+    process.env.DATABASE_URL = url;
   }
   const sequelize = new Sequelize(testEnv.DATABASE_URL, { dialect: "postgres", dialectModule: pg, logging: false });
   await createMigrator(sequelize, { quiet: true }).up();
