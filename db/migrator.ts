@@ -4,10 +4,12 @@ import { Umzug, SequelizeStorage } from "umzug";
 import type { QueryInterface, Sequelize } from "sequelize";
 import * as m0001 from "./migrations/0001-foundation";
 import * as m0002 from "./migrations/0002-sign-in-attempts-by-time";
+import * as m0010 from "./migrations/0010-user-sessions";
 
 const migrations = [
   { name: "0001-foundation", ...m0001 },
   { name: "0002-sign-in-attempts-by-time", ...m0002 },
+  { name: "0010-user-sessions", ...m0010 },
 ];
 
 export function createMigrator(sequelize: Sequelize, opts: { quiet?: boolean } = {}) {

@@ -1,7 +1,7 @@
 // One place that decides who may see what. Pages get a redirect to sign-in (with a return
 // address) or a 403 page; API routes get 401/403 JSON.
 import { data, redirect } from "react-router";
-import { getSession } from "./session.server";
+import { sessionOf } from "./session.server";
 import { CourseMembership, User, type CourseRole, type Role } from "./db/models.server";
 
 interface GuardOptions {
@@ -14,24 +14,48 @@ function deny(status: 401 | 403, message: string, api: boolean): never {
   throw data({ message }, { status });
 }
 
-// The layout's loader and the page's loader get the same Request: look the person up once.
-const usersByRequest = new WeakMap<Request, Promise<User | null>>();
+/**
+ * Who is asking. Each credential kind looks at the request and either recognises it or answers
+ * null; the first that recognises it wins. Add a kind (for example `Authorization: Bearer`
+ * personal tokens) as one more entry of CREDENTIALS.
+ */
+export interface Principal {
+  user: User;
+  /** how the request proved who it is */
+  via: "session" | (string & {});
+  /** the user_sessions row, when signed in through the session cookie */
+  sessionId?: number;
+}
+type Credential = (request: Request) => Promise<Principal | null>;
 
-export function currentUser(request: Request): Promise<User | null> {
-  let user = usersByRequest.get(request);
-  if (!user) {
-    user = lookUpUser(request);
-    usersByRequest.set(request, user);
+const sessionCredential: Credential = async (request) => {
+  const found = await sessionOf(request);
+  return found ? { user: found.user, via: "session", sessionId: found.session.id } : null;
+};
+
+const CREDENTIALS: Credential[] = [sessionCredential];
+
+// The layout's loader and the page's loader get the same Request: look the person up once.
+const principalsByRequest = new WeakMap<Request, Promise<Principal | null>>();
+
+export function currentPrincipal(request: Request): Promise<Principal | null> {
+  let principal = principalsByRequest.get(request);
+  if (!principal) {
+    principal = (async () => {
+      // Read on every request, so an ended session, a changed role or a removed account takes effect at once.
+      for (const credential of CREDENTIALS) {
+        const found = await credential(request);
+        if (found) return found;
+      }
+      return null;
+    })();
+    principalsByRequest.set(request, principal);
   }
-  return user;
+  return principal;
 }
 
-async function lookUpUser(request: Request): Promise<User | null> {
-  const session = await getSession(request);
-  const userId = session.get("userId");
-  if (!userId) return null;
-  // Read on every request, so a changed role or a removed account takes effect at once.
-  return User.findByPk(userId);
+export async function currentUser(request: Request): Promise<User | null> {
+  return (await currentPrincipal(request))?.user ?? null;
 }
 
 export async function requireUser(request: Request, options: GuardOptions = {}): Promise<User> {

@@ -8,6 +8,8 @@ import { recordAudit } from "./audit.server";
 import { sendMail } from "./mail.server";
 import { config } from "./config.server";
 import { emailProblem, normaliseEmail } from "./auth.server";
+import { endSessionsOf } from "./session.server";
+import { liftSignInLock } from "./throttle.server";
 
 export type FieldErrors = Partial<Record<string, string>>;
 export type Outcome<T = undefined> = { ok: true; value: T } | { ok: false; errors: FieldErrors };
@@ -124,9 +126,15 @@ export async function requestPasswordReset(rawEmail: unknown): Promise<Outcome> 
 export function resetPassword(rawToken: string, input: { password: unknown; confirm: unknown }): Promise<Outcome<User>> {
   return redeemToken(rawToken, "password-reset", input, {}, async (user, passwordHash, transaction) => {
     await user.update({ passwordHash }, { transaction });
+    // Whoever knew the old password is signed out everywhere, and the lock the sign-in page
+    // recommended a reset for no longer stands in the way of the new password.
+    await endSessionsOf(user.id, "password-reset", { transaction });
+    await liftSignInLock(user.email, transaction);
     await recordAudit({ actorId: user.id, action: "user.password-reset", entityType: "user", entityId: user.id }, transaction);
   });
 }
+
+const ROLE_RANK: Record<Role, number> = { student: 0, demonstrator: 1, instructor: 2, admin: 3 };
 
 /** Admin only: changes a person's Ratebook-wide role. */
 export async function changeUserRole(actor: User, userId: number, rawRole: unknown): Promise<Outcome> {
@@ -139,6 +147,8 @@ export async function changeUserRole(actor: User, userId: number, rawRole: unkno
     if (user.role === role) return { ok: true as const, value: undefined };
     const before = { role: user.role };
     await user.update({ role }, { transaction });
+    // Taking powers away signs the person out everywhere; a promotion needs no new sign-in.
+    if (ROLE_RANK[role] < ROLE_RANK[before.role]) await endSessionsOf(user.id, "role-changed", { transaction });
     await recordAudit({ actorId: actor.id, action: "user.role-changed", entityType: "user", entityId: user.id, before, after: { role } }, transaction);
     return { ok: true as const, value: undefined };
   });
@@ -170,7 +180,12 @@ async function setMembershipRole(actor: User, m: CourseMembership, role: CourseR
 }
 
 /** A signed-in person changes their own password; the current one must be given. */
-export async function changeOwnPassword(user: User, input: { current: unknown; password: unknown; confirm: unknown }): Promise<Outcome> {
+export async function changeOwnPassword(
+  user: User,
+  input: { current: unknown; password: unknown; confirm: unknown },
+  /** the caller's own session, which stays signed in; every other one ends */
+  keepSessionId?: number,
+): Promise<Outcome> {
   const current = String(input.current ?? "");
   const password = String(input.password ?? "");
   const errors: FieldErrors = {};
@@ -183,7 +198,22 @@ export async function changeOwnPassword(user: User, input: { current: unknown; p
   const passwordHash = await hashPassword(password);
   await sequelize.transaction(async (transaction) => {
     await user.update({ passwordHash }, { transaction });
+    await endSessionsOf(user.id, "password-changed", { exceptId: keepSessionId, transaction });
     await recordAudit({ actorId: user.id, action: "user.password-changed", entityType: "user", entityId: user.id }, transaction);
   });
   return { ok: true, value: undefined };
+}
+
+/** Admin only: removes an account; its sessions, memberships and open links go with it (audited). */
+export async function removeAccount(actor: User, userId: number): Promise<Outcome> {
+  if (actor.id === userId) return { ok: false, errors: { form: "You cannot remove your own account; ask another admin." } };
+  return sequelize.transaction(async (transaction) => {
+    const user = await User.findByPk(userId, { transaction, lock: true });
+    if (!user) return { ok: false as const, errors: { form: "That person no longer exists." } };
+    const before = { email: user.email, displayName: user.displayName, role: user.role };
+    await endSessionsOf(user.id, "account-removed", { transaction });
+    await user.destroy({ transaction });
+    await recordAudit({ actorId: actor.id, action: "user.removed", entityType: "user", entityId: userId, before }, transaction);
+    return { ok: true as const, value: undefined };
+  });
 }

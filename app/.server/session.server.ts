@@ -1,5 +1,12 @@
-import { createCookieSessionStorage, redirect } from "react-router";
+// Server-side sessions. The cookie holds only a random token (signed, so tampering is caught
+// before the database is asked); the database holds its SHA-256 in user_sessions. Ending a row
+// ends that browser's session at once, whoever holds a copy of the cookie.
+import crypto from "node:crypto";
+import { Op, type Transaction } from "sequelize";
+import { createCookie, redirect } from "react-router";
 import { config } from "./config.server";
+import { User } from "./db/models.server";
+import { UserSession } from "./db/user-session.server";
 
 if (config.usingDevSecret) {
   console.warn(
@@ -8,32 +15,97 @@ if (config.usingDevSecret) {
   );
 }
 
-type SessionData = { userId: number };
-type SessionFlash = { notice: string };
+export const SESSION_LIFETIME_MS = 12 * 60 * 60 * 1000;
+/** last_seen_at is written at most this often, so reads stay reads. */
+const TOUCH_EVERY_MS = 5 * 60 * 1000;
 
-export const sessionStorage = createCookieSessionStorage<SessionData, SessionFlash>({
-  cookie: {
-    name: "__ratebook_session",
-    httpOnly: true,
-    sameSite: "lax",
-    path: "/",
-    secure: config.secureCookies,
-    secrets: [config.sessionSecret],
-    maxAge: 60 * 60 * 12,
-  },
+export type SessionEndReason =
+  | "signed-out"
+  | "ended-from-account"
+  | "password-changed"
+  | "password-reset"
+  | "role-changed"
+  | "account-removed";
+
+export const sessionCookie = createCookie("__ratebook_session", {
+  httpOnly: true,
+  sameSite: "lax",
+  path: "/",
+  secure: config.secureCookies,
+  secrets: [config.sessionSecret],
+  maxAge: SESSION_LIFETIME_MS / 1000,
 });
 
-export function getSession(request: Request) {
-  return sessionStorage.getSession(request.headers.get("Cookie"));
+function digest(token: string) {
+  return crypto.createHash("sha256").update(token).digest("hex");
 }
 
-export async function startSession(userId: number, redirectTo: string) {
-  const session = await sessionStorage.getSession();
-  session.set("userId", userId);
-  return redirect(redirectTo, { headers: { "Set-Cookie": await sessionStorage.commitSession(session) } });
+async function tokenFrom(request: Request): Promise<string | null> {
+  const value = await sessionCookie.parse(request.headers.get("Cookie"));
+  return typeof value === "string" && value.length >= 32 ? value : null;
 }
 
+/** The live session row and its person for this request, or null. */
+export async function sessionOf(request: Request, now = new Date()): Promise<{ session: UserSession; user: User } | null> {
+  const token = await tokenFrom(request);
+  if (!token) return null;
+  const session = await UserSession.findOne({
+    where: { tokenHash: digest(token), endedAt: null, expiresAt: { [Op.gt]: now } },
+    include: [{ model: User, as: "user" }],
+  });
+  if (!session?.user) return null;
+  if (now.getTime() - session.lastSeenAt.getTime() > TOUCH_EVERY_MS) {
+    await UserSession.update({ lastSeenAt: now }, { where: { id: session.id } });
+  }
+  return { session, user: session.user };
+}
+
+/** Signs the person in on this browser: a new session row, and its token in the cookie. */
+export async function startSession(userId: number, redirectTo: string, request?: Request) {
+  const token = crypto.randomBytes(32).toString("base64url");
+  const now = new Date();
+  await UserSession.destroy({ where: { userId, expiresAt: { [Op.lt]: now } } });
+  await UserSession.create({
+    userId,
+    tokenHash: digest(token),
+    userAgent: (request?.headers.get("user-agent") ?? "").slice(0, 200),
+    lastSeenAt: now,
+    expiresAt: new Date(now.getTime() + SESSION_LIFETIME_MS),
+  });
+  return redirect(redirectTo, { headers: { "Set-Cookie": await sessionCookie.serialize(token) } });
+}
+
+/** Sign-out: ends this browser's session row (so a copied cookie stops working) and clears the cookie. */
 export async function endSession(request: Request) {
-  const session = await getSession(request);
-  return redirect("/sign-in", { headers: { "Set-Cookie": await sessionStorage.destroySession(session) } });
+  const token = await tokenFrom(request);
+  if (token) await UserSession.update({ endedAt: new Date(), endedReason: "signed-out" }, { where: { tokenHash: digest(token), endedAt: null } });
+  return redirect("/sign-in", { headers: { "Set-Cookie": await sessionCookie.serialize("", { maxAge: 0 }) } });
+}
+
+/** Ends every live session of a person (except `exceptId`, the caller's own, when given). */
+export async function endSessionsOf(
+  userId: number,
+  reason: SessionEndReason,
+  options: { exceptId?: number; transaction?: Transaction } = {},
+): Promise<number> {
+  const where: Record<string | symbol, unknown> = { userId, endedAt: null };
+  if (options.exceptId !== undefined) where.id = { [Op.ne]: options.exceptId };
+  const [count] = await UserSession.update({ endedAt: new Date(), endedReason: reason }, { where, transaction: options.transaction });
+  return count;
+}
+
+/** Ends one session of a person (from their account page); false when it was not theirs or not live. */
+export async function endOneSession(userId: number, sessionId: number): Promise<boolean> {
+  const [count] = await UserSession.update(
+    { endedAt: new Date(), endedReason: "ended-from-account" },
+    { where: { id: sessionId, userId, endedAt: null } },
+  );
+  return count === 1;
+}
+
+export function liveSessionsOf(userId: number, now = new Date()) {
+  return UserSession.findAll({
+    where: { userId, endedAt: null, expiresAt: { [Op.gt]: now } },
+    order: [["lastSeenAt", "DESC"]],
+  });
 }

@@ -1,7 +1,7 @@
 // Slows down password guessing: after a number of failures for one e-mail (or one client
 // address) within a window, further attempts are refused until the window has passed.
 // Stored in PostgreSQL so several app servers share the count.
-import { Op } from "sequelize";
+import { Op, type Transaction } from "sequelize";
 import { SignInAttempt } from "./db/models.server";
 import { UNKNOWN_ADDRESS } from "./client-address.server";
 
@@ -40,4 +40,9 @@ export const KEEP_ATTEMPTS_MS = 24 * 60 * 60 * 1000;
 export async function recordAttempt(email: string, ip: string, succeeded: boolean, now = new Date()) {
   await SignInAttempt.create({ email, ip, succeeded });
   await SignInAttempt.destroy({ where: { createdAt: { [Op.lt]: new Date(now.getTime() - KEEP_ATTEMPTS_MS) } } });
+}
+
+/** A completed password reset proves the address: its recent failures no longer count. */
+export async function liftSignInLock(email: string, transaction?: Transaction) {
+  await SignInAttempt.destroy({ where: { email, succeeded: false }, transaction });
 }

@@ -5,6 +5,8 @@ import { changeUserRole, type FieldErrors } from "~/.server/people.server";
 import { ROLES, User } from "~/.server/db/models.server";
 import { PageTitle } from "~/components/page";
 import { RoleSelect } from "~/components/role-select";
+import { readForm } from "~/.server/body.server";
+import { formId } from "~/.server/ids.server";
 
 export const meta: Route.MetaFunction = () => [{ title: "People · Ratebook" }];
 
@@ -20,8 +22,10 @@ export async function loader({ request }: Route.LoaderArgs) {
 
 export async function action({ request }: Route.ActionArgs) {
   const me = await requireUser(request, { roles: ["admin"] });
-  const form = await request.formData();
-  const result = await changeUserRole(me, Number(form.get("userId")), form.get("role"));
+  const form = await readForm(request);
+  const userId = formId(form, "userId");
+  if (userId === null) return data({ errors: { form: "That row does not name a person; reload the page." } as FieldErrors }, { status: 400 });
+  const result = await changeUserRole(me, userId, form.get("role"));
   const errors: FieldErrors = result.ok ? {} : result.errors;
   return data({ errors }, { status: result.ok ? 200 : 400 });
 }

@@ -6,6 +6,7 @@ import { startSession } from "~/.server/session.server";
 import { Button, Field, FormMessage } from "~/components/form";
 import { NarrowPage } from "~/components/page";
 import { MIN_PASSWORD_LENGTH } from "~/.server/passwords.server";
+import { readForm } from "~/.server/body.server";
 
 export const meta: Route.MetaFunction = () => [{ title: "Accept invitation · Ratebook" }];
 
@@ -16,14 +17,14 @@ export async function loader({ params }: Route.LoaderArgs) {
 }
 
 export async function action({ request, params }: Route.ActionArgs) {
-  const form = await request.formData();
+  const form = await readForm(request);
   const result = await acceptInvitation(params.token, {
     password: form.get("password"),
     confirm: form.get("confirm"),
     displayName: form.get("displayName"),
   });
   if (!result.ok) return data({ errors: result.errors, displayName: String(form.get("displayName") ?? "") }, { status: 400 });
-  return startSession(result.value.id, "/dashboard");
+  return startSession(result.value.id, "/dashboard", request);
 }
 
 export default function Invitation({ loaderData, actionData }: Route.ComponentProps) {

@@ -3,11 +3,12 @@ import type { Route } from "./+types/password-forgot";
 import { requestPasswordReset, type FieldErrors } from "~/.server/people.server";
 import { Button, Field, FormMessage } from "~/components/form";
 import { NarrowPage } from "~/components/page";
+import { readForm } from "~/.server/body.server";
 
 export const meta: Route.MetaFunction = () => [{ title: "Reset password · Ratebook" }];
 
 export async function action({ request }: Route.ActionArgs) {
-  const form = await request.formData();
+  const form = await readForm(request);
   const email = String(form.get("email") ?? "");
   const result = await requestPasswordReset(email);
   const errors: FieldErrors = result.ok ? {} : result.errors;

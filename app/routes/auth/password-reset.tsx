@@ -5,6 +5,7 @@ import { resetPassword } from "~/.server/people.server";
 import { MIN_PASSWORD_LENGTH } from "~/.server/passwords.server";
 import { Button, Field, FormMessage } from "~/components/form";
 import { NarrowPage } from "~/components/page";
+import { readForm } from "~/.server/body.server";
 
 export const meta: Route.MetaFunction = () => [{ title: "Choose a new password · Ratebook" }];
 
@@ -15,7 +16,7 @@ export async function loader({ params }: Route.LoaderArgs) {
 }
 
 export async function action({ request, params }: Route.ActionArgs) {
-  const form = await request.formData();
+  const form = await readForm(request);
   const result = await resetPassword(params.token, { password: form.get("password"), confirm: form.get("confirm") });
   if (!result.ok) return data({ errors: result.errors }, { status: 400 });
   return redirect("/sign-in?reset=1");

@@ -5,6 +5,7 @@ import { currentUser, safeReturnTo } from "~/.server/guards.server";
 import { startSession } from "~/.server/session.server";
 import { Button, Field, FormMessage } from "~/components/form";
 import { NarrowPage } from "~/components/page";
+import { readForm, withFormBody } from "~/.server/body.server";
 
 export const meta: Route.MetaFunction = () => [{ title: "Sign in · Ratebook" }];
 
@@ -16,13 +17,13 @@ export async function loader({ request }: Route.LoaderArgs) {
 }
 
 export async function action({ request }: Route.ActionArgs) {
-  // authenticate() consumes the body, so read the other fields from a clone first.
-  const form = await request.clone().formData();
+  // Read the body once, within the limit; authenticate() gets a copy to read again.
+  const form = await readForm(request);
   const email = String(form.get("email") ?? "");
   const returnTo = safeReturnTo(form.get("returnTo"));
   try {
-    const user = await authenticator.authenticate("form", request);
-    return startSession(user.id, returnTo);
+    const user = await authenticator.authenticate("form", withFormBody(request, form));
+    return startSession(user.id, returnTo, request);
   } catch (error) {
     if (error instanceof SignInError) {
       return data({ error: error.message, field: error.field, email }, { status: 400 });

@@ -7,13 +7,16 @@ import { Course, COURSE_ROLES } from "~/.server/db/models.server";
 import { Button, Field, FormMessage, SelectField } from "~/components/form";
 import { PageTitle } from "~/components/page";
 import { RoleSelect } from "~/components/role-select";
+import { readForm } from "~/.server/body.server";
+import { formId, pathId } from "~/.server/ids.server";
 
 export const meta: Route.MetaFunction = ({ data }) => [{ title: `${data?.course.code ?? "Course"} · Ratebook` }];
 
+const NO_COURSE = "There is no course at this address.";
+
 async function loadCourse(courseId: string) {
-  const id = Number(courseId);
-  const course = Number.isInteger(id) ? await Course.findByPk(id) : null;
-  if (!course) throw data({ message: "There is no course at this address." }, { status: 404 });
+  const course = await Course.findByPk(pathId(courseId, NO_COURSE));
+  if (!course) throw data({ message: NO_COURSE }, { status: 404 });
   return course;
 }
 
@@ -41,7 +44,7 @@ export async function action({ request, params }: Route.ActionArgs) {
   const user = await requireUser(request);
   const course = await loadCourse(params.courseId);
   await requireCourseRole(user, course.id, ["instructor"]);
-  const form = await request.formData();
+  const form = await readForm(request);
   const intent = String(form.get("intent") ?? "");
   const reply = (r: Omit<ActionResult, "intent">, status = 200) => data<ActionResult>({ intent, ...r }, { status });
   if (intent === "invite") {
@@ -51,7 +54,9 @@ export async function action({ request, params }: Route.ActionArgs) {
     return reply({ errors: {}, values: {}, notice });
   }
   if (intent === "change-role") {
-    const result = await changeMembershipRole(user, course.id, Number(form.get("membershipId")), form.get("role"));
+    const membershipId = formId(form, "membershipId");
+    if (membershipId === null) return reply({ errors: { form: "That row does not name a person in this course; reload the page." }, values: {}, notice: null }, 400);
+    const result = await changeMembershipRole(user, course.id, membershipId, form.get("role"));
     if (!result.ok) return reply({ errors: result.errors, values: {}, notice: null }, 400);
     return reply({ errors: {}, values: {}, notice: "Role changed." });
   }

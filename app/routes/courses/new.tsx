@@ -4,6 +4,7 @@ import { requireUser } from "~/.server/guards.server";
 import { createCourse } from "~/.server/courses.server";
 import { Button, Field } from "~/components/form";
 import { PageTitle } from "~/components/page";
+import { readForm } from "~/.server/body.server";
 
 export const meta: Route.MetaFunction = () => [{ title: "New course · Ratebook" }];
 const STAFF = ["admin", "instructor"] as const;
@@ -15,7 +16,7 @@ export async function loader({ request }: Route.LoaderArgs) {
 
 export async function action({ request }: Route.ActionArgs) {
   const user = await requireUser(request, { roles: STAFF });
-  const form = await request.formData();
+  const form = await readForm(request);
   const input = { code: form.get("code"), title: form.get("title"), term: form.get("term") };
   const result = await createCourse(user, input);
   if (!result.ok) return data({ errors: result.errors, values: Object.fromEntries(form) as Record<string, string> }, { status: 400 });
