@@ -3,9 +3,10 @@
 
 import { describe, expect, it } from "vitest";
 import { spawnSync } from "node:child_process";
+import path from "node:path";
 import { exactRun, normalSource, withNoise } from "~/lib/kinetics/synthetic.ts";
 
-const root = new URL("../../", import.meta.url).pathname;
+const root = path.resolve(import.meta.dirname, "..", "..");
 
 function runCommand(stdin: string) {
   const res = spawnSync("npx", ["tsx", "scripts/fit.ts"], { cwd: root, input: stdin, encoding: "utf8", timeout: 60000 });

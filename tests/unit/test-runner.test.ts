@@ -3,8 +3,9 @@
 // selected tests pass. Spawns processes, so it lives under tests/unit/ like the fit command test.
 import { describe, expect, it } from "vitest";
 import { spawnSync } from "node:child_process";
+import path from "node:path";
 
-const root = new URL("../../", import.meta.url).pathname;
+const root = path.resolve(import.meta.dirname, "..", "..");
 // Nothing listens on port 9 (discard) on loopback here: the setup's first query fails at once.
 const unreachable = "postgres://ratebook@127.0.0.1:9/ratebook_unreachable";
 
