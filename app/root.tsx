@@ -1,7 +1,11 @@
 import { Links, Meta, Outlet, Scripts, ScrollRestoration } from "react-router";
 import type { Route } from "./+types/root";
 import { ErrorPanel } from "./components/error-panel";
+import { withSecurityHeaders } from "./.server/security-headers.server";
 import "./app.css";
+
+// Every answer the app makes (pages, data requests, the JSON API, redirects) gets the security headers.
+export const middleware: Route.MiddlewareFunction[] = [async (_args, next) => withSecurityHeaders(await next())];
 
 export const meta: Route.MetaFunction = () => [{ title: "Ratebook" }];
 

@@ -23,6 +23,8 @@ function sizeText(bytes: number) {
 }
 
 function refuse(status: 400 | 413, message: string, api: boolean): never {
+  // The answer goes out at once; Node's server discards whatever of the body is still arriving
+  // (closing the connection instead makes clients that are still sending miss the 413).
   if (api) throw Response.json({ errors: [{ path: "", message }] }, { status });
   throw data({ message }, { status });
 }
@@ -41,8 +43,9 @@ export async function readBodyBytes(request: Request, limit: number, api = false
     if (done) break;
     total += value.byteLength;
     if (total > limit) {
-      // Stop reading: the rest of the body is never pulled into memory.
-      await reader.cancel().catch(() => undefined);
+      // Stop reading: the rest of the body is never pulled into memory. (Cancelling the stream
+      // would make the Node adapter destroy the socket before the 413 could be sent.)
+      reader.releaseLock();
       tooLarge();
     }
     chunks.push(value);
