@@ -31,7 +31,12 @@ export default [
   ]),
 
   // JSON API (resource routes).
-  ...prefix("api", [route("me", "routes/api/me.ts"), route("fit", "routes/api/fit.ts")]),
+  ...prefix("api", [
+    route("me", "routes/api/me.ts"),
+    route("fit", "routes/api/fit.ts"),
+    route("courses", "routes/api/courses.ts"),
+    route("openapi.json", "routes/api/openapi.ts"),
+  ]),
 
   route("*", "routes/not-found.tsx"),
 ] satisfies RouteConfig;

@@ -4,11 +4,15 @@ import { Umzug, SequelizeStorage } from "umzug";
 import type { QueryInterface, Sequelize } from "sequelize";
 import * as m0001 from "./migrations/0001-foundation";
 import * as m0002 from "./migrations/0002-sign-in-attempts-by-time";
+import * as m0003 from "./migrations/0003-planning";
+import * as m0004 from "./migrations/0004-job-queue";
 import * as m0010 from "./migrations/0010-user-sessions";
 
 const migrations = [
   { name: "0001-foundation", ...m0001 },
   { name: "0002-sign-in-attempts-by-time", ...m0002 },
+  { name: "0003-planning", ...m0003 },
+  { name: "0004-job-queue", ...m0004 },
   { name: "0010-user-sessions", ...m0010 },
 ];
 

@@ -13,7 +13,6 @@ const db = await openAppDatabase();
 await db.migrate(false);
 const { seedDemo } = await import("../db/seeds/demo");
 const signIns = await seedDemo();
-await db.close();
 console.log(`[db] ready at ${db.url.replace(/\/\/[^@]*@/, "//")}`);
 
 const env: NodeJS.ProcessEnv = { ...process.env, DATABASE_URL: db.url, PORT: String(port) };
@@ -34,6 +33,12 @@ if (!process.env.SMTP_URL) {
   env.MAIL_SINK_URL = `http://127.0.0.1:${httpPort}`;
   console.log(`[mail] local mail sink on 127.0.0.1:${smtpPort}; admins read it at /admin/mail`);
 }
+// The demo runs the job-queue worker (e-mail, marking) in this process; production runs
+// `npm run worker` on machines of its own.
+const { startWorker } = await import("../app/.server/jobs/worker.server");
+const worker = await startWorker();
+console.log("[jobs] worker running in this process");
+
 // The local demo is served over plain http, where a Secure cookie would never come back.
 env.SESSION_COOKIE_SECURE ??= "0";
 env.APP_URL ??= `http://localhost:${port}`;
@@ -63,4 +68,8 @@ function printSignIns() {
   console.log("\nPress Ctrl+C to stop. PostgreSQL keeps running; `npm run db:stop` stops it.\n");
 }
 for (const sig of ["SIGINT", "SIGTERM"] as const) process.on(sig, () => server.kill(sig));
-server.on("exit", (code) => process.exit(code ?? 0));
+server.on("exit", async (code) => {
+  await worker.stop().catch(() => undefined);
+  await db.close();
+  process.exit(code ?? 0);
+});

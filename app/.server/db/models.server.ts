@@ -44,6 +44,8 @@ export class CourseMembership extends Model<
   declare courseId: ForeignKey<Course["id"]>;
   declare userId: ForeignKey<User["id"]>;
   declare role: CourseRole;
+  /** the institution's student ID from the roster (students only) */
+  declare studentNumber: CreationOptional<string | null>;
   declare createdAt: CreationOptional<Date>;
   declare updatedAt: CreationOptional<Date>;
   declare user?: User;
@@ -114,6 +116,7 @@ CourseMembership.init(
   {
     id: { type: DataTypes.INTEGER, autoIncrement: true, primaryKey: true },
     role: { type: DataTypes.STRING(20), allowNull: false, validate: { isIn: [COURSE_ROLES as unknown as string[]] } },
+    studentNumber: { type: DataTypes.STRING(40), allowNull: true },
     createdAt: DataTypes.DATE,
     updatedAt: DataTypes.DATE,
   },

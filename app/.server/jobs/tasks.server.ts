@@ -1,0 +1,9 @@
+// Every task the workers know. To add one: write app/.server/jobs/tasks/<name>.server.ts with
+// defineTask(), and add it to this list.
+import type { TaskList } from "graphile-worker";
+import type { TaskDefinition } from "./define-task.server";
+import { sendMailTask } from "./tasks/send-mail.server";
+
+const definitions: TaskDefinition[] = [sendMailTask];
+
+export const taskList: TaskList = Object.fromEntries(definitions.map((d) => [d.name, d.run]));

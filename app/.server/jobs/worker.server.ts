@@ -1,0 +1,31 @@
+// Running the queue. `npm start` runs a worker inside its own process for the demo; in
+// production app servers only add jobs and workers run `npm run worker` on machines of their
+// own. Tests drain the queue with runJobsUntilIdle().
+import { run, runOnce, type Runner } from "graphile-worker";
+import { getSequelize } from "../db/sequelize.server";
+import { connectionStringOf, quietWorkerLogger } from "./connection.server";
+import { taskList } from "./tasks.server";
+
+export async function startWorker(options: { concurrency?: number; pollInterval?: number } = {}): Promise<Runner> {
+  return run({
+    connectionString: connectionStringOf(getSequelize()),
+    taskList,
+    concurrency: options.concurrency ?? 4,
+    pollInterval: options.pollInterval ?? 2000,
+    noHandleSignals: true,
+    logger: quietWorkerLogger,
+  });
+}
+
+/** Runs every job that is due now (and jobs those add) until none is left. */
+export async function runJobsUntilIdle(): Promise<void> {
+  await runOnce({ connectionString: connectionStringOf(getSequelize()), taskList, noHandleSignals: true, logger: quietWorkerLogger });
+}
+
+/** Jobs waiting or failed, for tests and the admin view. */
+export async function pendingJobs(): Promise<Array<{ id: string; task: string; attempts: number; lastError: string | null }>> {
+  const [rows] = await getSequelize().query(
+    "select id, task_identifier as task, attempts, last_error as \"lastError\" from graphile_worker.jobs order by id",
+  );
+  return rows as never;
+}

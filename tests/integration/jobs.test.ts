@@ -1,0 +1,41 @@
+// The PostgreSQL job queue: a job added in a transaction exists only if that transaction
+// commits, and running the queue sends the mail it asks for.
+import { afterAll, describe, expect, test } from "vitest";
+import { sequelize } from "~/.server/db/models.server";
+import { enqueue } from "~/.server/jobs/queue.server";
+import { pendingJobs, runJobsUntilIdle } from "~/.server/jobs/worker.server";
+import { closeSequelize } from "~/.server/db/sequelize.server";
+import { waitForMail } from "./helpers";
+
+afterAll(() => closeSequelize());
+
+describe("job queue", () => {
+  test("a rollback drops the job; a commit keeps it and the worker sends the mail", async () => {
+    await runJobsUntilIdle();
+    const before = (await pendingJobs()).length;
+    await expect(
+      sequelize.transaction(async (transaction) => {
+        await enqueue("send-mail", { to: "rolled-back@demo.ratebook.invalid", subject: "never", text: "x" }, { transaction });
+        expect((await pendingJobs()).length).toBe(before); // not visible outside the transaction
+        throw new Error("roll back");
+      }),
+    ).rejects.toThrow("roll back");
+    expect((await pendingJobs()).length).toBe(before);
+
+    await sequelize.transaction(async (transaction) => {
+      await enqueue("send-mail", { to: "queued@demo.ratebook.invalid", subject: "From the queue", text: "hello" }, { transaction });
+    });
+    const waiting = await pendingJobs();
+    expect(waiting.map((j) => j.task)).toContain("send-mail");
+    await runJobsUntilIdle();
+    const [mail] = await waitForMail("queued@demo.ratebook.invalid");
+    expect(mail.subject).toBe("From the queue");
+    expect(await pendingJobs()).toEqual([]);
+  });
+
+  test("a malformed payload is dropped with an error instead of retried", async () => {
+    await sequelize.query("select graphile_worker.add_job('send-mail', '{\"to\": \"not an address\"}'::json)");
+    await runJobsUntilIdle();
+    expect(await pendingJobs()).toEqual([]);
+  });
+});

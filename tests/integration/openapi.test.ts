@@ -1,0 +1,77 @@
+// Keeps the OpenAPI document true: every operation it describes is called on the running app,
+// once signed in (the answer must be a documented status and match its schema) and once with no
+// credentials (401, unless the operation needs none).
+import { afterAll, beforeAll, describe, expect, test } from "vitest";
+import { startAppServer } from "../browser/harness";
+import { demoCookie } from "./helpers";
+import { schemaProblems } from "./json-schema";
+import { pathParameterValues } from "./openapi-params";
+
+let server: Awaited<ReturnType<typeof startAppServer>>;
+let doc: any;
+const cookies: Record<string, string> = {};
+
+beforeAll(async () => {
+  server = await startAppServer();
+  const res = await fetch(`${server.url}/api/openapi.json`);
+  expect(res.status).toBe(200);
+  doc = await res.json();
+  for (const who of ["instructor", "student", "admin"] as const) cookies[who] = await demoCookie(who);
+}, 180_000);
+
+afterAll(() => server?.stop());
+
+function operations() {
+  const ops: Array<{ path: string; method: string; op: any }> = [];
+  for (const [path, item] of Object.entries<any>(doc.paths)) for (const [method, op] of Object.entries<any>(item)) ops.push({ path, method, op });
+  return ops;
+}
+
+describe("OpenAPI document", () => {
+  test("is OpenAPI 3.1 and every $ref resolves", () => {
+    expect(doc.openapi).toBe("3.1.0");
+    const text = JSON.stringify(doc);
+    for (const m of text.matchAll(/"#\/components\/schemas\/([^"]+)"/g)) expect(doc.components.schemas, m[1]).toHaveProperty(m[1]);
+    expect(operations().length).toBeGreaterThanOrEqual(4);
+  });
+
+  test("every operation answers as documented, signed in and signed out", async () => {
+    const values = await pathParameterValues();
+    const called: string[] = [];
+    for (const { path, method, op } of operations()) {
+      const url = path.replace(/\{(\w+)\}/g, (_, name: string) => {
+        const v = values[name];
+        if (v === undefined) throw new Error(`tests/integration/openapi-params.ts has no value for {${name}} (used by ${path})`);
+        return String(v);
+      });
+      const example = op.requestBody?.content?.["application/json"]?.example;
+      const init = (cookie?: string): RequestInit => ({
+        method: method.toUpperCase(),
+        headers: {
+          ...(cookie ? { Cookie: cookie } : {}),
+          ...(example ? { "Content-Type": "application/json" } : {}),
+          Origin: server.url,
+        },
+        body: example ? JSON.stringify(example) : undefined,
+      });
+      const who = op["x-test-caller"] ?? "instructor";
+      const res = await fetch(server.url + url, init(cookies[who]));
+      const where = `${method.toUpperCase()} ${url} as ${who}`;
+      expect(Object.keys(op.responses), `${where} answered ${res.status}`).toContain(String(res.status));
+      expect(res.status, where).toBeLessThan(300);
+      expect(res.headers.get("content-type") ?? "", where).toContain("application/json");
+      const body = await res.json();
+      const schema = op.responses[String(res.status)].content["application/json"].schema;
+      expect(schemaProblems(body, schema, doc.components.schemas), where).toEqual([]);
+
+      const needsNoAuth = Array.isArray(op.security) && op.security.length === 0;
+      if (!needsNoAuth) {
+        const anon = await fetch(server.url + url, init());
+        expect(anon.status, `${method.toUpperCase()} ${url} signed out`).toBe(401);
+        expect(await anon.json()).toHaveProperty("error");
+      }
+      called.push(`${method} ${path}`);
+    }
+    expect(called.length).toBe(operations().length);
+  });
+});
