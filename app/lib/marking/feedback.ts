@@ -1,0 +1,96 @@
+// What a group reads about its run: the engine's flags rewritten for students, with the rows
+// named as they are in the uploaded file, and the two checks in words. Never names the
+// reference value or the tolerance (those stay with the staff).
+import type { Flag } from "../kinetics/index.ts";
+import type { CheckScore } from "./marks.ts";
+
+/** The straight-line forms a group may say it plotted (the engine's own names), and the others. */
+export const REPORTED_METHODS: Record<string, string> = {
+  "ln(CA0/CA)": "ln(CA0/CA) against t (first order)",
+  "1/CA - 1/CA0": "1/CA − 1/CA0 against t (second order, or equal feed)",
+  "ln[(CB*CA0)/(CB0*CA)]": "ln[(CB·CA0)/(CB0·CA)] against t (unequal feed)",
+  "curve-fit": "a curve fitted to CA against t",
+  other: "something else",
+};
+
+export function methodText(method: string): string {
+  return (REPORTED_METHODS[method] ?? method).replace(/\*/g, "·");
+}
+
+function rowsText(rows: readonly number[], rowNumbers: readonly number[]): string {
+  if (!rows.length) return "";
+  const named = rows.slice(0, 8).map((r) => rowNumbers[r] ?? r + 1);
+  return `${rows.length === 1 ? "row" : "rows"} ${named.join(", ")}${rows.length > 8 ? ", …" : ""} of your file`;
+}
+
+const SLIP_HINT = /perhaps ([^.]+)\./;
+
+/** One line per flag, in words for a group. `rowNumbers[i]` is the file row of point i. */
+export function flagFeedback(flag: Flag & { refit?: { k?: number } }, rowNumbers: readonly number[]): string {
+  const where = rowsText(flag.rows, rowNumbers);
+  switch (flag.code) {
+    case "unit-slip": {
+      const hint = SLIP_HINT.exec(flag.message)?.[1] ?? "a unit slip";
+      return `Your rate constant is off from what your bench's conditions give by about a unit-conversion factor: perhaps ${hint}. Check the time and concentration units of your columns.`;
+    }
+    case "order-mismatch":
+    case "curvature":
+      return `Your readings bend away from the straight line this rate law predicts${where ? ` (most clearly in ${where})` : ""}. Check the start time, the temperature control and whether the plot you drew is the right one for your feed.`;
+    case "low-conversion":
+      return `Too little of the limiting reagent had reacted by your last reading for a reliable rate constant (${flag.message.match(/about (\d+) %/)?.[1] ?? "under 20"} %). Take readings for longer next time.`;
+    case "few-points":
+      return `Your file has too few usable readings for a trustworthy rate constant; take more readings across the run.`;
+    case "time-order":
+      return `Some times are out of order or repeated (${where}). Check the time column.`;
+    case "beyond-asymptote":
+      return `Some readings (${where}) are at or past the value the reaction can reach, so they cannot go on the straight line; check them.`;
+    case "straight-line-bias":
+      return `The straight-line transform magnifies the noise in some of your readings (often near the end of the run); a curve fit gives a steadier k.`;
+    case "fit-not-converged":
+      return `Your readings show too little change to fit a rate constant reliably.`;
+    default: {
+      const code = flag.code as string;
+      if (code === "outlier") return `${where ? capitalise(where) : "One reading"} sits far from the curve through the others: a wild reading (a misread scale, a bubble, a typing slip). Check it in your lab book.`;
+      if (code === "feed-mismatch") return `Your first readings do not match the feed your bench was given: check that you used your own bench's solutions and the right concentration unit.`;
+      return flag.message;
+    }
+  }
+}
+
+function capitalise(s: string) {
+  return s[0].toUpperCase() + s.slice(1);
+}
+
+export interface FeedbackInput {
+  flags: Array<Flag & { refit?: { k?: number } }>;
+  rowNumbers: readonly number[];
+  experiment: CheckScore;
+  analysis: CheckScore;
+  reportedK: number | null;
+  reportedMethod: string | null;
+  /** the straight line that fits this bench's feed (engine's form name) */
+  expectedForm: string;
+  late: boolean;
+  excludedRows: readonly number[];
+}
+
+/** Feedback lines for the group: flags first, then what each check found. */
+export function feedbackLines(input: FeedbackInput): string[] {
+  const lines = input.flags.map((f) => flagFeedback(f, input.rowNumbers));
+  if (input.reportedMethod && input.reportedMethod in REPORTED_METHODS && input.reportedMethod !== "curve-fit" && input.reportedMethod !== "other" && input.reportedMethod !== input.expectedForm) {
+    lines.push(`For your bench's feed the straight line is ${methodText(input.expectedForm)}; you used ${methodText(input.reportedMethod)}, so your k is not the slope this rate law gives.`);
+  }
+  if (input.reportedK === null) lines.push("You did not report a rate constant of your own, so the analysis check scored nothing.");
+  else if (input.analysis.band === "full") lines.push("Your reported k matches the straight line through your own readings.");
+  else lines.push(`Your reported k differs from the straight line through your own readings by ${Math.abs(input.analysis.deviationPct).toFixed(1)} %: check the slope and the plot you used.`);
+  lines.push(
+    input.experiment.band === "full"
+      ? "Your rate constant agrees with the expected value for your bench's temperature."
+      : input.experiment.band === "partial"
+        ? "Your rate constant is near the expected value for your bench's temperature, but not within the band for full marks."
+        : "Your rate constant is far from the expected value for your bench's temperature.",
+  );
+  if (input.excludedRows.length) lines.push(`A reviewer left out ${rowsText(input.excludedRows.map((_, i) => i), input.excludedRows)} and marked the rest.`);
+  if (input.late) lines.push("Submitted after the deadline: the late penalty was applied.");
+  return lines;
+}

@@ -1,0 +1,118 @@
+// One submission's run through the engine and the rubric: the bench's feed and temperature, the
+// practical's reaction and reference, the group's readings and reported k in, the engine result,
+// both checks, the mark and the feedback lines out. Pure: the marking job and the tests call it.
+import { runFit, textbookLine, lawFromOrders, validateFitRequest, type FitRequest, type FitResult, type Measurement } from "../kinetics/index.ts";
+import { molPerLitrePer, type ConcentrationUnit, type TimeUnit } from "../kinetics/units.ts";
+import { analysisCheck, combine, experimentCheck, type CheckScore, type MarkParts } from "./marks.ts";
+import { feedbackLines } from "./feedback.ts";
+import { handLineK, markingK } from "./engine-result.ts";
+import type { MarkingRubric } from "./rubric.ts";
+
+export interface MarkingContext {
+  reaction: { a: number; b: number; orderA: number; orderB: number };
+  /** the bench's feed, mol/L */
+  feed: { CA0: number; CB0: number };
+  temperatureC: number;
+  /** what the practical measures; a group may always send concentrations of A instead */
+  measurement: Measurement;
+  /** per second, concentrations in mol/L */
+  reference: { k: number; TrefC?: number; EaKJ?: number };
+  rubric: MarkingRubric;
+}
+
+export interface RunInput {
+  points: [number, number][];
+  /** file row of each point */
+  rowNumbers: number[];
+  timeUnit: TimeUnit;
+  concentrationUnit: ConcentrationUnit;
+  /** "concentrationA", or the practical's own measured quantity */
+  measured: "concentrationA" | "session";
+  reportedK: number | null;
+  reportedMethod: string | null;
+  late: boolean;
+  /** file rows a reviewer left out */
+  excludedRows: number[];
+}
+
+export interface MarkOutcome {
+  ok: true;
+  result: FitResult;
+  experiment: CheckScore;
+  analysis: CheckScore;
+  parts: MarkParts;
+  kMarking: number;
+  kLine: number;
+  kRefAtT: number;
+  feedback: string[];
+  /** file row of each point the engine saw (after exclusions), to name its flag rows */
+  rowNumbers: number[];
+}
+
+export type MarkAttempt = MarkOutcome | { ok: false; errors: Array<{ path: string; message: string }> };
+
+/** The engine request for a group's readings at its bench (exclusions applied). */
+export function buildRequest(ctx: MarkingContext, run: RunInput, withReference: boolean): { request: FitRequest; rowNumbers: number[] } {
+  const excluded = new Set(run.excludedRows);
+  const points: [number, number][] = [];
+  const rowNumbers: number[] = [];
+  run.points.forEach((p, i) => {
+    if (excluded.has(run.rowNumbers[i])) return;
+    points.push(p);
+    rowNumbers.push(run.rowNumbers[i]);
+  });
+  const cs = molPerLitrePer(run.concentrationUnit);
+  let measurement: Measurement = run.measured === "concentrationA" ? { kind: "concentrationA" } : ctx.measurement;
+  if (measurement.kind === "signal" && !Number.isFinite(measurement.S0)) {
+    // A signal's start value: the reading at the earliest time (the group measured it).
+    let first = 0;
+    points.forEach((p, i) => (p[0] < points[first][0] ? (first = i) : 0));
+    measurement = { ...measurement, S0: points[first]?.[1] ?? NaN };
+  }
+  const request: FitRequest = {
+    reaction: ctx.reaction,
+    feed: { CA0: ctx.feed.CA0 / cs, CB0: ctx.feed.CB0 / cs },
+    units: { time: run.timeUnit, concentration: run.concentrationUnit },
+    measurement,
+    points,
+    temperatureC: ctx.temperatureC,
+  };
+  if (withReference) request.reference = { ...ctx.reference, tolerancePct: ctx.rubric.experiment.fullWithinPct };
+  return { request, rowNumbers };
+}
+
+export function markRun(ctx: MarkingContext, run: RunInput): MarkAttempt {
+  const { request, rowNumbers } = buildRequest(ctx, run, true);
+  const checked = validateFitRequest(request);
+  if (!checked.ok) return { ok: false, errors: checked.errors };
+  const result = runFit(checked.request);
+  const kRefAtT = result.reference!.kAtT;
+  const kMarking = markingK(result);
+  const kLine = handLineK(result);
+  const experiment = experimentCheck(kMarking, kRefAtT, ctx.rubric);
+  const analysis = analysisCheck(run.reportedK, kLine, ctx.rubric);
+  const parts = combine(experiment, analysis, ctx.rubric, run.late);
+  const law = lawFromOrders(ctx.reaction.orderA, ctx.reaction.orderB)!;
+  const nu = ctx.reaction.a > 0 ? ctx.reaction.b / ctx.reaction.a : 1;
+  const expectedForm = textbookLine(law, { CA0: ctx.feed.CA0, CB0: ctx.feed.CB0, nu }).y;
+  const feedback = feedbackLines({
+    flags: result.flags,
+    rowNumbers,
+    experiment,
+    analysis,
+    reportedK: run.reportedK,
+    reportedMethod: run.reportedMethod,
+    expectedForm,
+    late: run.late,
+    excludedRows: run.excludedRows,
+  });
+  return { ok: true, result, experiment, analysis, parts, kMarking, kLine, kRefAtT, feedback, rowNumbers };
+}
+
+/** The preview a group sees before submitting: the same fit with no reference value anywhere in it. */
+export function previewRun(ctx: MarkingContext, run: Omit<RunInput, "late" | "excludedRows" | "reportedK" | "reportedMethod">): { ok: true; result: FitResult; rowNumbers: number[] } | { ok: false; errors: Array<{ path: string; message: string }> } {
+  const { request, rowNumbers } = buildRequest(ctx, { ...run, late: false, excludedRows: [], reportedK: null, reportedMethod: null }, false);
+  const checked = validateFitRequest(request);
+  if (!checked.ok) return { ok: false, errors: checked.errors };
+  return { ok: true, result: runFit(checked.request), rowNumbers };
+}
