@@ -1,0 +1,99 @@
+// THE table of who may reach what: every route in app/routes.ts, keyed by its route file, with
+// the HTTP status each kind of visitor must get, and the screens the browser tests visit (390 px
+// overflow check and axe-core). A route in app/routes.ts with no entry here fails the access test.
+// How to add a route: see DEVELOPERS.md ("Access table").
+import { Course, CourseMembership, User } from "~/.server/db/models.server";
+import { hashPassword } from "~/.server/passwords.server";
+
+export const VISITORS = ["signedOut", "admin", "instructor", "demonstrator", "student", "otherStudent"] as const;
+export type Visitor = (typeof VISITORS)[number];
+export type SignedInVisitor = Exclude<Visitor, "signedOut">;
+
+/** Expected status per visitor, in the order of VISITORS. */
+type Statuses = [signedOut: number, admin: number, instructor: number, demonstrator: number, student: number, otherStudent: number];
+
+export interface RouteAccess {
+  /** the URL to request; {name} is replaced by fixtures[name] */
+  url: string;
+  /** status of a GET (redirects not followed); null when GET is not meaningful */
+  get: Statuses;
+  /** status of a POST with `body` (default: an empty form) */
+  post: Statuses;
+  body?: Record<string, string>;
+  /** the POST ends the caller's session (sign-out): the test signs in again afterwards */
+  endsSession?: boolean;
+  /** pages the browser tests open at 390 px and check with axe-core, as these visitors */
+  screens?: Visitor[];
+}
+
+// Shorthands for common rows.
+const PAGE_ALL = [302, 200, 200, 200, 200, 200] satisfies Statuses;
+const ADMIN_ONLY = [302, 200, 403, 403, 403, 403] satisfies Statuses;
+const NO_ACTION_PAGE = [405, 405, 405, 405, 405, 405] satisfies Statuses;
+const API_NO_METHOD = [405, 405, 405, 405, 405, 405] satisfies Statuses;
+
+export const ACCESS: Record<string, RouteAccess> = {
+  "routes/home.tsx": { url: "/", get: [302, 302, 302, 302, 302, 302], post: NO_ACTION_PAGE },
+  "routes/auth/sign-in.tsx": {
+    url: "/sign-in",
+    get: [200, 302, 302, 302, 302, 302],
+    // Signed in, the page's loader sends you on after the (refused) action.
+    post: [400, 302, 302, 302, 302, 302],
+    screens: ["signedOut"],
+  },
+  "routes/auth/sign-out.tsx": { url: "/sign-out", get: [302, 302, 302, 302, 302, 302], post: [302, 302, 302, 302, 302, 302], endsSession: true },
+  "routes/auth/invitation.tsx": { url: "/invitation/{badToken}", get: [200, 200, 200, 200, 200, 200], post: [400, 400, 400, 400, 400, 400], screens: ["signedOut"] },
+  "routes/auth/password-forgot.tsx": { url: "/password/forgot", get: [200, 200, 200, 200, 200, 200], post: [400, 400, 400, 400, 400, 400], screens: ["signedOut"] },
+  "routes/auth/password-reset.tsx": { url: "/password/reset/{badToken}", get: [200, 200, 200, 200, 200, 200], post: [400, 400, 400, 400, 400, 400], screens: ["signedOut"] },
+
+  "routes/dashboard.tsx": { url: "/dashboard", get: PAGE_ALL, post: NO_ACTION_PAGE, screens: ["admin", "instructor", "demonstrator", "student"] },
+  "routes/account.tsx": { url: "/account", get: PAGE_ALL, post: [302, 400, 400, 400, 400, 400], screens: ["instructor", "student"] },
+  "routes/courses/new.tsx": { url: "/courses/new", get: [302, 200, 200, 403, 403, 403], post: [302, 400, 400, 403, 403, 403], screens: ["instructor"] },
+  "routes/courses/course.tsx": {
+    url: "/courses/{course}",
+    get: [302, 200, 200, 200, 200, 403],
+    post: [302, 400, 400, 403, 403, 403],
+    screens: ["admin", "instructor", "demonstrator", "student"],
+  },
+  "routes/tools/fit-check.tsx": { url: "/fit-check", get: [302, 200, 200, 200, 403, 403], post: NO_ACTION_PAGE, screens: ["instructor", "demonstrator"] },
+  "routes/admin/people.tsx": { url: "/admin/people", get: ADMIN_ONLY, post: [302, 400, 403, 403, 403, 403], screens: ["admin"] },
+  "routes/admin/mail.tsx": { url: "/admin/mail", get: ADMIN_ONLY, post: NO_ACTION_PAGE, screens: ["admin"] },
+  "routes/admin/audit.tsx": { url: "/admin/audit", get: ADMIN_ONLY, post: NO_ACTION_PAGE, screens: ["admin"] },
+
+  "routes/api/me.ts": { url: "/api/me", get: [401, 200, 200, 200, 200, 200], post: API_NO_METHOD },
+  "routes/api/fit.ts": { url: "/api/fit", get: API_NO_METHOD, post: [401, 400, 400, 400, 403, 403] },
+  "routes/api/courses.ts": { url: "/api/courses", get: [401, 200, 200, 200, 200, 200], post: API_NO_METHOD },
+  "routes/api/openapi.ts": { url: "/api/openapi.json", get: [200, 200, 200, 200, 200, 200], post: API_NO_METHOD },
+
+  "routes/not-found.tsx": { url: "/no-such-page", get: [404, 404, 404, 404, 404, 404], post: NO_ACTION_PAGE, screens: ["signedOut", "student"] },
+};
+
+/** The sign-ins of the visitors (demo accounts; the other course's student is made by `makeFixtures`). */
+export const SIGN_INS: Record<SignedInVisitor, { email: string; password: string }> = {
+  admin: { email: "admin@demo.ratebook.invalid", password: "demo-admin-pass" },
+  instructor: { email: "instructor@demo.ratebook.invalid", password: "demo-instructor-pass" },
+  demonstrator: { email: "demonstrator@demo.ratebook.invalid", password: "demo-demonstrator-pass" },
+  student: { email: "student@demo.ratebook.invalid", password: "demo-student-pass" },
+  otherStudent: { email: "other-course-student@demo.ratebook.invalid", password: "other-course-student-pass" },
+};
+
+/**
+ * What the URLs above need, made once per test run: the demo course, and a second course whose
+ * only student is the "otherStudent" visitor. Add a fixture for a new kind of id here.
+ */
+export async function makeFixtures(): Promise<Record<string, string>> {
+  const course = await Course.findOne({ where: { code: "KIN-DEMO" } });
+  const [other] = await Course.findOrCreate({ where: { code: "ACCESS-OTHER", term: "Access test" }, defaults: { code: "ACCESS-OTHER", title: "Another course (test)", term: "Access test" } });
+  const { email, password } = SIGN_INS.otherStudent;
+  let student = await User.findOne({ where: { email } });
+  student ??= await User.create({ email, displayName: "Other-course student (test)", role: "student", passwordHash: await hashPassword(password) });
+  await CourseMembership.findOrCreate({ where: { courseId: other.id, userId: student.id }, defaults: { courseId: other.id, userId: student.id, role: "student" } });
+  return { course: String(course!.id), otherCourse: String(other.id), badToken: "not-a-real-token" };
+}
+
+export function fillUrl(url: string, fixtures: Record<string, string>) {
+  return url.replace(/\{(\w+)\}/g, (_, name: string) => {
+    if (!(name in fixtures)) throw new Error(`no fixture {${name}} (add it to makeFixtures in tests/access/table.ts)`);
+    return fixtures[name];
+  });
+}
