@@ -6,11 +6,11 @@
 //
 // For the runner's own test: `--steps vitest` runs only the named steps (comma-separated), and
 // arguments after `--` go to vitest (e.g. one test file).
-import { spawnSync } from "node:child_process";
+import { spawn, spawnSync } from "node:child_process";
 import fs from "node:fs";
 import path from "node:path";
 import { clusterLocation, projectRoot, startLocalCluster } from "./lib/postgres";
-import { summarize, summaryLines, type StepResult, type VitestReport } from "./lib/test-summary";
+import { firstErrorLine, summarize, summaryLines, type StepResult, type VitestReport } from "./lib/test-summary";
 
 const bin = (name: string) => path.join(projectRoot, "node_modules", ".bin", name);
 const chromium = process.env.CHROMIUM_PATH ?? "/usr/bin/chromium";
@@ -25,13 +25,25 @@ const wanted = new Set(stepsArg.split(","));
 const results: StepResult[] = [];
 const setupProblems: string[] = [];
 
-function run(name: string, cmd: string, args: string[]) {
+/** Runs a step with its output passed through live; keeps the output's tail to quote an error from it. */
+async function run(name: string, cmd: string, args: string[]) {
   console.log(`\n=== ${name}: ${path.basename(cmd)} ${args.join(" ")}`);
   const t0 = Date.now();
-  const res = spawnSync(cmd, args, { cwd: projectRoot, stdio: "inherit" });
-  const ok = res.status === 0 && !res.signal;
+  let tail = "";
+  const child = spawn(cmd, args, { cwd: projectRoot, stdio: ["ignore", "pipe", "pipe"] });
+  const keep = (chunk: Buffer, to: NodeJS.WriteStream) => {
+    to.write(chunk);
+    tail = (tail + chunk.toString()).slice(-200_000);
+  };
+  child.stdout.on("data", (c: Buffer) => keep(c, process.stdout));
+  child.stderr.on("data", (c: Buffer) => keep(c, process.stderr));
+  const { status, signal } = await new Promise<{ status: number | null; signal: NodeJS.Signals | null }>((resolve) => {
+    child.on("error", () => resolve({ status: null, signal: null }));
+    child.on("close", (code, sig) => resolve({ status: code, signal: sig }));
+  });
+  const ok = status === 0 && !signal;
   console.log(`=== ${name}: ${ok ? "passed" : "FAILED"} in ${((Date.now() - t0) / 1000).toFixed(1)} s`);
-  return { status: res.error ? null : res.status, signal: res.signal };
+  return { status, signal, firstError: ok ? undefined : firstErrorLine(tail) };
 }
 
 function ensureChromium() {
@@ -62,16 +74,16 @@ if (wanted.has("vitest")) {
 }
 
 if (wanted.has("typecheck")) {
-  results.push({ kind: "command", name: "typecheck", ...run("typecheck", "sh", ["-c", `"${bin("react-router")}" typegen && "${bin("tsc")}"`]) });
+  results.push({ kind: "command", name: "typecheck", ...await run("typecheck", "sh", ["-c", `"${bin("react-router")}" typegen && "${bin("tsc")}"`]) });
 }
 if (wanted.has("build")) {
-  results.push({ kind: "command", name: "build", ...run("build", "sh", ["-c", `"${bin("react-router")}" build`]) });
+  results.push({ kind: "command", name: "build", ...await run("build", "sh", ["-c", `"${bin("react-router")}" build`]) });
 }
 if (wanted.has("vitest")) {
   const report = path.join(projectRoot, ".data", `vitest-report-${process.pid}.json`);
   fs.mkdirSync(path.dirname(report), { recursive: true });
   fs.rmSync(report, { force: true });
-  const res = run("vitest", bin("vitest"), ["run", "--config", "tests/vitest.config.ts", "--reporter=default", "--reporter=json", `--outputFile=${report}`, ...vitestExtra]);
+  const res = await run("vitest", bin("vitest"), ["run", "--config", "tests/vitest.config.ts", "--reporter=default", "--reporter=json", `--outputFile=${report}`, ...vitestExtra]);
   let parsed: VitestReport | null = null;
   if (fs.existsSync(report)) {
     try {

@@ -8,6 +8,8 @@ export interface CommandStep {
   /** Exit status; null when the process was killed by a signal or could not start. */
   status: number | null;
   signal?: string | null;
+  /** The first error line the step printed, quoted in the reason. */
+  firstError?: string;
 }
 
 /** The subset of vitest's JSON reporter output that the verdict reads. */
@@ -26,6 +28,7 @@ export interface VitestStep {
   name: string;
   status: number | null;
   signal?: string | null;
+  firstError?: string;
   /** The parsed JSON report, or null when vitest wrote none (crash, failed global setup). */
   report: VitestReport | null;
 }
@@ -46,6 +49,19 @@ function exitText(status: number | null, signal?: string | null) {
   return `exited with status ${status}`;
 }
 
+const ANSI = /\u001b\[[0-9;]*m/g;
+
+/** The first line of output that names an error ("TypeError: …", "error TS2304: …"), without colour codes. */
+export function firstErrorLine(output: string): string | undefined {
+  for (const raw of output.split("\n")) {
+    const line = raw.replace(ANSI, "").trim();
+    if (/^(\w*Error|error TS\d+|Error)\b.*:/.test(line) || /: error TS\d+:/.test(line)) return line.slice(0, 300);
+  }
+  return undefined;
+}
+
+const quoted = (e?: string) => (e ? `; first error: ${e}` : "");
+
 export function summarize(steps: StepResult[], relativeName: (file: string) => string = (f) => f): Summary {
   let passed = 0;
   let failed = 0;
@@ -57,14 +73,14 @@ export function summarize(steps: StepResult[], relativeName: (file: string) => s
       if (ok) passed++;
       else {
         failed++;
-        reasons.push(`${step.name} ${exitText(step.status, step.signal)}`);
+        reasons.push(`${step.name} ${exitText(step.status, step.signal)}${quoted(step.firstError)}`);
       }
       continue;
     }
     const r = step.report;
     if (!r) {
       failed++;
-      reasons.push(`${step.name} ${exitText(step.status, step.signal)} and wrote no report (it crashed, or its global setup failed before any test ran)`);
+      reasons.push(`${step.name} ${exitText(step.status, step.signal)} and wrote no report (it crashed, or its global setup failed before any test ran)${quoted(step.firstError)}`);
       continue;
     }
     passed += r.numPassedTests;
@@ -84,13 +100,17 @@ export function summarize(steps: StepResult[], relativeName: (file: string) => s
     if (r.numTotalTests === 0) {
       failed++;
       counted++;
-      reasons.push(`${step.name} ran no test at all (no test files found, or every file was skipped)`);
+      reasons.push(
+        step.firstError
+          ? `${step.name} ran no test at all; first error: ${step.firstError}`
+          : `${step.name} ran no test at all (no test files found, or every file was skipped)`,
+      );
     }
     if (!ok && counted === 0) {
       // e.g. an unhandled error between tests, a failed global setup or teardown: vitest says
       // failure, the per-test counts do not.
       failed++;
-      reasons.push(`${step.name} ${exitText(step.status, step.signal)} although no test was reported failed (an unhandled error, or a failed global setup or teardown: see its output above)`);
+      reasons.push(`${step.name} ${exitText(step.status, step.signal)} although no test was reported failed (an unhandled error, or a failed global setup or teardown)${quoted(step.firstError)}`);
     } else if (ok && r.success === false && counted === 0) {
       failed++;
       reasons.push(`${step.name} reported failure in its JSON report although it exited 0`);

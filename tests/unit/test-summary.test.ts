@@ -2,7 +2,7 @@
 // the run red and say why. The report shapes follow vitest's JSON reporter (numTotalTests,
 // numPassedTests, numFailedTests, testResults[].assertionResults).
 import { describe, expect, it } from "vitest";
-import { summarize, summaryLines, type VitestReport } from "../../scripts/lib/test-summary";
+import { firstErrorLine, summarize, summaryLines, type VitestReport } from "../../scripts/lib/test-summary";
 
 const ok = (name: string) => ({ kind: "command" as const, name, status: 0 });
 function report(p: number, f: number, files: VitestReport["testResults"] = [{ name: "a.test.ts", status: f ? "failed" : "passed", assertionResults: [{}] }]): VitestReport {
@@ -65,5 +65,19 @@ describe("summarize", () => {
   it("repeats the reasons just above the last line", () => {
     const lines = summaryLines(summarize([{ kind: "command", name: "build", status: 1 }]));
     expect(lines).toEqual(["Why the run failed:", "- build exited with status 1", "0 passed, 1 failed"]);
+  });
+});
+
+describe("firstErrorLine", () => {
+  it("finds the first error in coloured output and quotes it in the reason", () => {
+    const out = "RUN v4\n\u001b[31m\u001b[1mSequelizeConnectionRefusedError\u001b[22m: connect ECONNREFUSED 127.0.0.1:9\u001b[39m\n at x\n";
+    const e = firstErrorLine(out);
+    expect(e).toBe("SequelizeConnectionRefusedError: connect ECONNREFUSED 127.0.0.1:9");
+    const s = summarize([{ kind: "vitest", name: "vitest", status: 1, firstError: e, report: { numTotalTests: 0, numPassedTests: 0, numFailedTests: 0, testResults: [] } }]);
+    expect(s.reasons).toEqual(["vitest ran no test at all; first error: SequelizeConnectionRefusedError: connect ECONNREFUSED 127.0.0.1:9"]);
+  });
+
+  it("finds TypeScript errors", () => {
+    expect(firstErrorLine("app/x.ts(3,1): error TS2304: Cannot find name 'y'.\n")).toBe("app/x.ts(3,1): error TS2304: Cannot find name 'y'.");
   });
 });
