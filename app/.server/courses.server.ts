@@ -1,4 +1,4 @@
-import { fn, col } from "sequelize";
+import { fn, col, QueryTypes } from "sequelize";
 import { Course, CourseMembership, User, sequelize, type CourseRole } from "./db/models.server";
 import { recordAudit } from "./audit.server";
 import type { FieldErrors, Outcome } from "./people.server";
@@ -36,6 +36,28 @@ export async function coursesFor(user: User): Promise<CourseSummary[]> {
     for (const row of counts) if (row.courseId === c.id) memberCounts[row.role] = Number(row.n);
     return { id: c.id, code: c.code, title: c.title, term: c.term, myRole: role, memberCounts };
   });
+}
+
+export interface CourseRoleRow {
+  id: number;
+  code: string;
+  title: string;
+  role: CourseRole;
+}
+
+/**
+ * The caller's courses and role in each, in one plain query: it runs on every `GET /api/me`,
+ * where the ORM's include and per-role counts cost several times the query itself
+ * (scripts/bench/api-me-bench.ts).
+ */
+export async function courseRolesFor(user: Pick<User, "id" | "role">): Promise<CourseRoleRow[]> {
+  if (user.role === "admin") {
+    return sequelize.query<CourseRoleRow>("select id, code, title, 'instructor' as role from courses order by code", { type: QueryTypes.SELECT });
+  }
+  return sequelize.query<CourseRoleRow>(
+    "select c.id, c.code, c.title, m.role from course_memberships m join courses c on c.id = m.course_id where m.user_id = $1 order by c.code",
+    { bind: [user.id], type: QueryTypes.SELECT },
+  );
 }
 
 const ROLE_ORDER: Record<CourseRole, number> = { instructor: 0, demonstrator: 1, student: 2 };

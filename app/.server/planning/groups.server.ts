@@ -1,7 +1,6 @@
 // Groups of a course: who is in which, and the caller's own groups with their benches.
-import { Group, GroupMember } from "../db/groups.server";
-import { Bench } from "../db/lab-sessions.server";
-import type { User } from "../db/models.server";
+import { sequelize, type User } from "../db/models.server";
+import { QueryTypes } from "sequelize";
 
 export interface MyGroup {
   id: number;
@@ -11,19 +10,16 @@ export interface MyGroup {
   benchId: number | null;
 }
 
-/** The person's groups, one entry per session where the group has a bench (or one with nulls). */
-export async function groupsOf(user: User): Promise<MyGroup[]> {
-  const memberships = await GroupMember.findAll({
-    where: { userId: user.id },
-    include: [{ model: Group, as: "group", include: [{ model: Bench, as: "benches", attributes: ["id", "sessionId"] }] }],
-    order: [["id", "ASC"]],
-  });
-  const out: MyGroup[] = [];
-  for (const m of memberships) {
-    const g = m.group!;
-    const benches = ((g as unknown as { benches?: Bench[] }).benches ?? []).slice().sort((a, b) => a.sessionId - b.sessionId);
-    if (!benches.length) out.push({ id: g.id, name: g.name, courseId: g.courseId, sessionId: null, benchId: null });
-    for (const b of benches) out.push({ id: g.id, name: g.name, courseId: g.courseId, sessionId: b.sessionId, benchId: b.id });
-  }
-  return out;
+/**
+ * The person's groups, one entry per session where the group has a bench (or one with nulls).
+ * One plain query: it runs on every `GET /api/me`, where the ORM's nested include cost several
+ * times the query (scripts/bench/api-me-bench.ts).
+ */
+export async function groupsOf(user: Pick<User, "id">): Promise<MyGroup[]> {
+  return sequelize.query<MyGroup>(
+    `select g.id, g.name, g.course_id as "courseId", b.session_id as "sessionId", b.id as "benchId"
+       from group_members gm join groups g on g.id = gm.group_id left join benches b on b.group_id = g.id
+      where gm.user_id = $1 order by gm.id, b.session_id`,
+    { bind: [user.id], type: QueryTypes.SELECT },
+  );
 }

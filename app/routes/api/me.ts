@@ -1,15 +1,15 @@
 import type { Route } from "./+types/me";
 import { requireUser } from "~/.server/guards.server";
-import { coursesFor } from "~/.server/courses.server";
+import { courseRolesFor } from "~/.server/courses.server";
 import { groupsOf } from "~/.server/planning/groups.server";
 
 /** The signed-in person, their courses and their groups, as JSON (401 when signed out). */
 export async function loader({ request }: Route.LoaderArgs) {
   const user = await requireUser(request, { api: true });
-  const [courses, groups] = await Promise.all([coursesFor(user), groupsOf(user)]);
+  const [courses, groups] = await Promise.all([courseRolesFor(user), groupsOf(user)]);
   return Response.json({
     user: { id: user.id, email: user.email, displayName: user.displayName, role: user.role },
-    courses: courses.map((c) => ({ id: c.id, code: c.code, title: c.title, role: c.myRole })),
+    courses,
     groups,
   });
 }
