@@ -1,8 +1,9 @@
-// Command: one JSON fit request on stdin -> one JSON result on stdout.
+// Command: one JSON request on stdin -> one JSON result on stdout. The request is a run's fit
+// request, or { "arrhenius": { "benches": [...] } } for the pooled Arrhenius fit.
 // Exit 0 with the result; exit 2 with { "errors": [{ path, message }] } for an invalid request.
 // A thin wrapper: all checking and fitting is in app/lib/kinetics.
 
-import { runFit, validateFitRequest } from "../app/lib/kinetics/index.ts";
+import { runRequest, validateRequest } from "../app/lib/kinetics/index.ts";
 
 async function readStdin(): Promise<string> {
   const chunks: Buffer[] = [];
@@ -22,6 +23,6 @@ try {
 } catch (e) {
   fail([{ path: "", message: `not valid JSON: ${(e as Error).message}` }]);
 }
-const checked = validateFitRequest(json);
+const checked = validateRequest(json);
 if (!checked.ok) fail(checked.errors);
-process.stdout.write(JSON.stringify(runFit(checked.request), null, 2) + "\n");
+process.stdout.write(JSON.stringify(runRequest(checked.value), null, 2) + "\n");

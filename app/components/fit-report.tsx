@@ -55,6 +55,10 @@ export function FitReport({ result, kind, points, lines }: Props) {
             <td className="num py-1">{withInterval(result.nonlinear.k, result.nonlinear.kCI95)} {unitText(result.kUnit)}</td>
             {perMinute ? <td className="num py-1 pl-6 text-ink-soft">= {sig(result.nonlinear.k * 60)} {unitText(result.kUnit, true)}</td> : <td />}
           </tr>
+          <tr className="border-b border-rule">
+            <th className="py-1 pr-6">k, unweighted line (hand method)</th>
+            <td className="num py-1">{withInterval(result.line.k, result.line.kCI95)} {unitText(result.kUnit)}</td><td />
+          </tr>
           {result.nonlinear.Sinf ? (
             <tr className="border-b border-rule">
               <th className="py-1 pr-6">Final signal S∞ (fitted)</th>

@@ -1,7 +1,7 @@
 // Benchmark of the kinetics engine on seeded synthetic runs (known k). Prints its figures and
 // exits 1 if a target is missed:
 //   - 1,000 data sets of 200 points, full fit each (straight line, nonlinear fit, diagnostics,
-//     order comparison): at least 1,000 data sets per second on one core;
+//     order comparison, outlier and feed checks): at least 2,500 data sets per second on one core;
 //   - one 100,000-point logger record (validation + full fit): under 0.3 s.
 // Usage: npx tsx scripts/bench/fit-bench.ts
 
@@ -12,7 +12,7 @@ import type { Feed, RateLaw } from "../../app/lib/kinetics/rateLaws.ts";
 const DATASETS = 1000;
 const POINTS = 200;
 const LOGGER_POINTS = 100_000;
-const TARGET_PER_SECOND = 1000;
+const TARGET_PER_SECOND = 2500;
 const TARGET_LOGGER_S = 0.3;
 
 const ORDERS: Record<RateLaw, [number, number]> = {
@@ -44,11 +44,20 @@ function makeRequest(i: number, points: number, normal: () => number): FitReques
   };
 }
 
+// The machine is shared: the targets are judged on this process's CPU time (one thread), and
+// the wall-clock time is printed beside it.
+const cpuSeconds = () => {
+  const u = process.cpuUsage();
+  return (u.user + u.system) / 1e6;
+};
+let lastWall = 0;
 function timeBatch(requests: FitRequest[]): number {
   const t0 = performance.now();
+  const c0 = cpuSeconds();
   let sink = 0;
   for (const r of requests) sink += runFit(r).k;
-  const seconds = (performance.now() - t0) / 1000;
+  const seconds = cpuSeconds() - c0;
+  lastWall = (performance.now() - t0) / 1000;
   if (!Number.isFinite(sink)) throw new Error("a fit returned no k");
   return seconds;
 }
@@ -59,6 +68,7 @@ timeBatch(warm); // let the JIT settle before measuring
 
 const batch = Array.from({ length: DATASETS }, (_, i) => makeRequest(i, POINTS, normal));
 const withComparison = timeBatch(batch);
+const withComparisonWall = lastWall;
 const withoutComparison = timeBatch(batch.map((r) => ({ ...r, options: { compareOrders: false } })));
 const rate = DATASETS / withComparison;
 
@@ -66,15 +76,16 @@ const logger = makeRequest(3, LOGGER_POINTS, normal); // conductivity-like signa
 const loggerJson = JSON.stringify(logger);
 /** Parse, validate and fit the whole record, as the command does; seconds for each stage. */
 function fitLogger() {
-  const t0 = performance.now();
+  const w0 = performance.now();
+  const t0 = cpuSeconds();
   const parsed = JSON.parse(loggerJson);
-  const t1 = performance.now();
+  const t1 = cpuSeconds();
   const checked = validateFitRequest(parsed);
   if (!checked.ok) throw new Error("logger request invalid");
-  const t2 = performance.now();
+  const t2 = cpuSeconds();
   const result = runFit(checked.request);
-  const t3 = performance.now();
-  return { result, parse: (t1 - t0) / 1000, validate: (t2 - t1) / 1000, fit: (t3 - t2) / 1000, total: (t3 - t0) / 1000 };
+  const t3 = cpuSeconds();
+  return { result, parse: t1 - t0, validate: t2 - t1, fit: t3 - t2, total: t3 - t0, wall: (performance.now() - w0) / 1000 };
 }
 const loggerRuns = [fitLogger(), fitLogger(), fitLogger()];
 const first = loggerRuns[0];
@@ -84,19 +95,19 @@ const median = [...loggerRuns].sort((a, b) => a.total - b.total)[1].total;
 
 const fitSinf = makeRequest(3, LOGGER_POINTS, normal);
 fitSinf.measurement = { kind: "signal", S0: 2.4 };
-const t1 = performance.now();
+const t1 = cpuSeconds();
 const sinfResult = runFit(fitSinf);
-const sinfSeconds = (performance.now() - t1) / 1000;
+const sinfSeconds = cpuSeconds() - t1;
 
-console.log(`node ${process.version}, one thread`);
+console.log(`node ${process.version}, one thread; times are this process's CPU time (wall clock in brackets where it differs)`);
 console.log(
-  `${DATASETS} data sets x ${POINTS} points, full fit with order comparison: ${withComparison.toFixed(3)} s = ${rate.toFixed(0)} data sets/s (target >= ${TARGET_PER_SECOND})`,
+  `${DATASETS} data sets x ${POINTS} points, full fit with order comparison: ${withComparison.toFixed(3)} s = ${rate.toFixed(0)} data sets/s (target >= ${TARGET_PER_SECOND}) [wall ${withComparisonWall.toFixed(3)} s]`,
 );
 console.log(
   `same, without order comparison: ${withoutComparison.toFixed(3)} s = ${(DATASETS / withoutComparison).toFixed(0)} data sets/s`,
 );
 console.log(
-  `${LOGGER_POINTS} point logger record, first call: ${loggerSeconds.toFixed(3)} s (target < ${TARGET_LOGGER_S}) = parse ${first.parse.toFixed(3)} + validate ${first.validate.toFixed(3)} + fit ${first.fit.toFixed(3)}; median of 3 calls ${median.toFixed(3)} s; k = ${loggerResult.k.toPrecision(5)}, curve-fit k = ${loggerResult.nonlinear.k.toPrecision(5)}`,
+  `${LOGGER_POINTS} point logger record, first call: ${loggerSeconds.toFixed(3)} s (target < ${TARGET_LOGGER_S}) = parse ${first.parse.toFixed(3)} + validate ${first.validate.toFixed(3)} + fit ${first.fit.toFixed(3)}; median of 3 calls ${median.toFixed(3)} s [wall, first call ${first.wall.toFixed(3)} s]; k = ${loggerResult.k.toPrecision(5)}, curve-fit k = ${loggerResult.nonlinear.k.toPrecision(5)}`,
 );
 console.log(
   `${LOGGER_POINTS} point logger record with Sinf fitted: ${sinfSeconds.toFixed(3)} s; Sinf = ${sinfResult.nonlinear.Sinf?.value.toPrecision(5)}`,

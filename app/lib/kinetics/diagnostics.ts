@@ -12,12 +12,21 @@ export type FlagCode =
   | "time-order"
   | "order-mismatch"
   | "straight-line-bias"
-  | "fit-not-converged";
+  | "fit-not-converged"
+  | "feed-mismatch"
+  | "outlier"
+  | "fits-disagree";
 
 export interface Flag {
   code: FlagCode;
   message: string;
   rows: number[];
+  /** outlier: the marking k refitted without the flagged row (the mark itself keeps every reading) */
+  kWithout?: number;
+  /** feed-mismatch and unit-slip: the factor found */
+  factor?: number;
+  /** fits-disagree: which estimate to trust */
+  prefer?: "weighted-line" | "curve";
 }
 
 // Thresholds below are common practice, no source, unless marked otherwise.
@@ -84,27 +93,54 @@ export function checkLowConversion(fractionReacted: number, limiting: "A" | "B",
   };
 }
 
-const SLIPS: { factor: number; hint: string }[] = [
-  { factor: 60, hint: "minutes entered as seconds (or hours as minutes)" },
-  { factor: 1 / 60, hint: "seconds entered as minutes (or minutes as hours)" },
-  { factor: 3600, hint: "hours entered as seconds" },
-  { factor: 1 / 3600, hint: "seconds entered as hours" },
-  { factor: 1000, hint: "mol/L entered as mmol/L, or a reference k per millisecond" },
-  { factor: 1 / 1000, hint: "mmol/L entered as mol/L" },
+// R = fitted k / reference k. Times read t times too short (unit says s, numbers are minutes)
+// make k t times too large; concentrations read c times too large make a second-order k c times
+// too small (k ~ 1/(C t)); a first-order k has no concentration in it.
+const TIME_SLIPS: { factor: number; hint: string }[] = [
+  { factor: 60, hint: "times in minutes entered with the unit s (or hours with the unit min)" },
+  { factor: 1 / 60, hint: "times in seconds entered with the unit min (or minutes with the unit h), or a reference k per minute" },
+  { factor: 3600, hint: "times in hours entered with the unit s" },
+  { factor: 1 / 3600, hint: "times in seconds entered with the unit h, or a reference k per hour" },
+];
+const CONCENTRATION_SLIPS: { factor: number; hint: string }[] = [
+  { factor: 1 / 1000, hint: "concentrations in mmol/L entered with the unit mol/L (feed and readings)" },
+  { factor: 1000, hint: "concentrations in mol/L entered with the unit mmol/L (feed and readings), or a reference k in L/(mmol s)" },
 ];
 
-/** Fitted k off from the reference by about a unit-conversion factor. */
-export function checkUnitSlip(k: number, kReference: number): Flag | null {
+/**
+ * Fitted k off from the reference by about a unit-conversion factor, or a product of a time and
+ * a concentration factor; concentration factors only for a k that has a concentration unit.
+ */
+export function checkUnitSlip(k: number, kReference: number, kHasConcentration = true): Flag | null {
   const ratio = k / kReference;
   if (!(ratio > 0)) return null;
-  for (const slip of SLIPS) {
-    if (Math.abs(Math.log(ratio / slip.factor)) <= Math.log(UNIT_SLIP_BAND)) {
-      return {
-        code: "unit-slip",
-        message: `The fitted k is ${formatRatio(ratio)} times the reference k, close to a unit factor: perhaps ${slip.hint}. Check the units.`,
-        rows: [],
-      };
+  const candidates: { factor: number; hint: string }[] = [...TIME_SLIPS];
+  if (kHasConcentration) {
+    for (const c of CONCENTRATION_SLIPS) {
+      candidates.push(c);
+      for (const t of TIME_SLIPS) candidates.push({ factor: c.factor * t.factor, hint: `${c.hint}, and ${t.hint}` });
     }
+  }
+  let best: { factor: number; hint: string; off: number } | null = null;
+  for (const slip of candidates) {
+    const off = Math.abs(Math.log(ratio / slip.factor));
+    if (off <= Math.log(UNIT_SLIP_BAND) && (!best || off < best.off)) best = { ...slip, off };
+  }
+  if (best) {
+    return {
+      code: "unit-slip",
+      message: `The fitted k is ${formatRatio(ratio)} times the reference k, close to the unit factor ${formatRatio(best.factor)}: perhaps ${best.hint}. Check the units.`,
+      rows: [],
+      factor: ratio,
+    };
+  }
+  if (!kHasConcentration && Math.abs(Math.log(ratio / 1000)) <= Math.log(UNIT_SLIP_BAND) || !kHasConcentration && Math.abs(Math.log(ratio * 1000)) <= Math.log(UNIT_SLIP_BAND)) {
+    return {
+      code: "unit-slip",
+      message: `The fitted k is ${formatRatio(ratio)} times the reference k. A first-order k does not depend on the concentration unit, so this is not a mol/L against mmol/L slip: check the reference k's unit (1/s) and the time unit.`,
+      rows: [],
+      factor: ratio,
+    };
   }
   return null;
 }
@@ -118,8 +154,9 @@ function formatRatio(r: number): string {
  * curve bends away from the data: wrong order, wrong Sinf, drift or a temperature change.
  * `rowsInTimeOrder[i]` is the row of `residualsInTimeOrder[i]`.
  */
-export function checkCurvature(residualsInTimeOrder: ArrayLike<number>, rowsInTimeOrder: ArrayLike<number>): Flag | null {
-  if (residualsInTimeOrder.length < CURVATURE_MIN_POINTS) return null;
+export function checkCurvature(residualsInTimeOrder: ArrayLike<number>, rowsInTimeOrder: ArrayLike<number>, exact = false): Flag | null {
+  // exact data: the residuals are rounding, whose signs mean nothing
+  if (exact || residualsInTimeOrder.length < CURVATURE_MIN_POINTS) return null;
   const test = runsTest(residualsInTimeOrder);
   if (!test || !(test.pLow < CURVATURE_P)) return null;
   return {
@@ -129,31 +166,57 @@ export function checkCurvature(residualsInTimeOrder: ArrayLike<number>, rowsInTi
   };
 }
 
-/** Another supported rate law leaves a much smaller residual sum of squares (a rule of this engine). */
-export function checkOrderMismatch(n: number, requested: string, requestedSse: number, best: string, bestSse: number): Flag | null {
-  if (n < MIN_POINTS || best === requested || !(requestedSse > 2 * bestSse)) return null;
+/** Another supported rate law is decidedly more likely (information criterion, orderComparison.ts). */
+export function checkOrderMismatch(n: number, requested: string, best: string, delta: number, threshold: number): Flag | null {
+  if (n < MIN_POINTS || best === requested || !(delta >= threshold)) return null;
   return {
     code: "order-mismatch",
-    message: `The ${best} law fits these data better than the ${requested} law asked for (residual sum of squares ${bestSse.toPrecision(3)} against ${requestedSse.toPrecision(3)}).`,
+    message: `The ${best} law fits these readings decidedly better than the ${requested} law asked for (AIC lower by ${delta.toPrecision(3)}; ${threshold} or more counts as decided).`,
     rows: [],
   };
 }
 
 /**
- * The straight-line k and the curve-fit k disagree by more than `STRAIGHT_LINE_BIAS_SIGMAS`
- * combined standard errors (a rule of this engine). Both come from the same data, so their
- * difference is usually far smaller than that; a large one means the transform to the
- * straight line has distorted the noise, typically close to the long-time limit.
+ * Two estimates of k from the same readings disagree by more than `STRAIGHT_LINE_BIAS_SIGMAS`
+ * combined standard errors (a rule of this engine; both come from the same data, so their
+ * difference is usually far smaller) and by more than a share of k that matters for a mark.
  */
 export const STRAIGHT_LINE_BIAS_SIGMAS = 3;
+/** differences below this share of k are never flagged (exact data agree to rounding) */
+export const MIN_FLAGGED_DIFFERENCE = 0.02;
 
-export function checkStraightLineBias(kLine: number, seLine: number, kCurve: number, seCurve: number): Flag | null {
-  const combined = Math.hypot(seLine, seCurve);
-  if (!(combined > 0) || !(Math.abs(kLine - kCurve) > STRAIGHT_LINE_BIAS_SIGMAS * combined)) return null;
+function disagree(k1: number, se1: number, k2: number, se2: number): boolean {
+  const combined = Math.hypot(se1, se2);
+  const diff = Math.abs(k1 - k2);
+  return combined > 0 && diff > STRAIGHT_LINE_BIAS_SIGMAS * combined && diff > MIN_FLAGGED_DIFFERENCE * Math.abs(k2);
+}
+
+/** The unweighted (hand-method) line against the marking k. */
+export function checkStraightLineBias(kLine: number, seLine: number, kMark: number, seMark: number): Flag | null {
+  if (!disagree(kLine, seLine, kMark, seMark)) return null;
   return {
     code: "straight-line-bias",
-    message: `The straight-line k (${kLine.toPrecision(3)}) and the curve-fit k (${kCurve.toPrecision(3)}) differ by more than their uncertainties allow: the straight-line transform magnifies the noise in some points (often near the end of the run). Prefer the curve-fit k.`,
+    message: `The unweighted straight line (the hand method) gives k = ${kLine.toPrecision(3)}, off the weighted k = ${kMark.toPrecision(3)} by more than their uncertainties allow: the transform magnifies the noise of some readings (often near the end of the run). The mark uses the weighted k; a group's hand value near ${kLine.toPrecision(3)} is this bias, not an arithmetic slip.`,
     rows: [],
+  };
+}
+
+/** The weighted line and the curve fit disagree; `prefer` says which to trust and why. */
+export function checkFitsDisagree(
+  kLine: number,
+  seLine: number,
+  kCurve: number,
+  seCurve: number,
+  prefer: "weighted-line" | "curve",
+  why: string,
+): Flag | null {
+  if (!disagree(kLine, seLine, kCurve, seCurve)) return null;
+  const trusted = prefer === "curve" ? `the curve-fit k (${kCurve.toPrecision(3)})` : `the weighted-line k (${kLine.toPrecision(3)})`;
+  return {
+    code: "fits-disagree",
+    message: `The weighted straight line (k = ${kLine.toPrecision(3)}) and the curve fit to the readings (k = ${kCurve.toPrecision(3)}) differ by more than their uncertainties allow. Trust ${trusted}: ${why}`,
+    rows: [],
+    prefer,
   };
 }
 

@@ -25,6 +25,11 @@ export interface NonlinearProblem {
   map?: AffineMap;
   /** start signal, when Sinf is to be fitted */
   S0?: number;
+  /**
+   * weight of each reading, 1/v^2 with v its noise scale (noise.ts); omitted: all 1.
+   * The SSE is then the weighted one and residualStdDev the noise scale s (sd = s v).
+   */
+  weights?: ArrayLike<number>;
 }
 
 export interface NonlinearFit {
@@ -51,19 +56,25 @@ const STDERR_STEP_TOLERANCE = 1e-4;
 const ROUNDING_FLOOR = 1e-2;
 
 /** Fit k (and Sinf when `problem.map` is absent). A positive `kGuess` seeds the search, else a grid is used. */
-export function fitNonlinear(problem: NonlinearProblem, kGuess?: number): NonlinearFit {
+export function fitNonlinear(problem: NonlinearProblem, kGuess?: number, stdErrTolerance = STDERR_STEP_TOLERANCE): NonlinearFit {
   if (problem.map === undefined && problem.S0 === undefined) throw new Error("fitting Sinf needs S0");
   const goodGuess = kGuess !== undefined && kGuess > 0 && Number.isFinite(kGuess);
   const start = goodGuess ? { k: kGuess, span: problem.map ? 0 : profiledSpan(problem, kGuess) } : gridStart(problem);
 
+  if (goodGuess) {
+    // A seed from the straight line is usually close: refine it on all points directly, and
+    // call the library's search only when that does not settle.
+    const direct = polish(problem, kGuess, stdErrTolerance);
+    if (direct.converged) return finish(problem, direct.at, direct.steps, true);
+  }
   const sample = strided(problem, Math.max(1, Math.ceil(problem.t.length / SEARCH_POINTS)));
   let lm = searchWithLibrary(sample, start, SEARCH_ITERATIONS);
-  let polished = polish(problem, lm.k);
+  let polished = polish(problem, lm.k, stdErrTolerance);
   let iterations = lm.iterations + polished.steps;
   if (!polished.converged && Number.isFinite(polished.at.k)) {
     // a poor start: let the library search longer on the sample, then refine again
     lm = searchWithLibrary(sample, { k: polished.at.k, span: polished.at.span }, 10 * SEARCH_ITERATIONS);
-    polished = polish(problem, lm.k);
+    polished = polish(problem, lm.k, stdErrTolerance);
     iterations += lm.iterations + polished.steps;
   }
   return finish(problem, polished.at, iterations, polished.converged);
@@ -75,7 +86,7 @@ function searchWithLibrary(
   start: { k: number; span: number },
   maxIterations: number,
 ): { k: number; span: number; iterations: number } {
-  const { law, feed, t, values, map } = problem;
+  const { law, feed, t, values, map, weights } = problem;
   const reach = maxReactedA(feed);
   const S0 = problem.S0 ?? 0;
   const kScale = start.k;
@@ -110,6 +121,7 @@ function searchWithLibrary(
     maxIterations,
     errorTolerance: 0,
     damping: 1e-3,
+    ...(weights ? { weights: Array.from(weights, (w) => 1 / Math.sqrt(w)) } : {}),
     minValues: map ? [0] : [0, -Number.MAX_VALUE],
     maxValues: map ? [Number.MAX_VALUE] : [Number.MAX_VALUE, Number.MAX_VALUE],
     });
@@ -141,7 +153,7 @@ interface Profile {
 
 /** One pass over the data at k: everything needed for a step and, at the optimum, for the result. */
 function profile(problem: NonlinearProblem, k: number, perPoint: Float64Array = new Float64Array(problem.t.length)): Profile {
-  const { law, feed, t, values, map } = problem;
+  const { law, feed, t, values, map, weights } = problem;
   if (map) {
     let sse = 0;
     let g = 0;
@@ -151,9 +163,10 @@ function profile(problem: NonlinearProblem, k: number, perPoint: Float64Array = 
       const r = values[i] - map.offset - map.slope * c;
       const dk = map.slope * sensitivityGivenCA(law, feed, k, t[i], c);
       perPoint[i] = r;
-      sse += r * r;
-      g += dk * r;
-      h += dk * dk;
+      const w = weights ? weights[i] : 1;
+      sse += w * r * r;
+      g += w * dk * r;
+      h += w * dk * dk;
     }
     return { k, sse, span: 0, g, h, jkk: h, jks: 0, jss: 0, perPoint };
   }
@@ -173,12 +186,13 @@ function profile(problem: NonlinearProblem, k: number, perPoint: Float64Array = 
     const d = sensitivityGivenCA(law, feed, k, t[i], c);
     const y = values[i] - S0;
     perPoint[i] = f;
-    sff += f * f;
-    sfy += f * y;
-    syy += y * y;
-    sdy += d * y;
-    sdf += d * f;
-    sdd += d * d;
+    const w = weights ? weights[i] : 1;
+    sff += w * f * f;
+    sfy += w * f * y;
+    syy += w * y * y;
+    sdy += w * d * y;
+    sdf += w * d * f;
+    sdd += w * d * d;
   }
   const span = sff > 0 ? sfy / sff : 0;
   const c = -span / reach; // dS/dk = c * dCA/dk
@@ -198,7 +212,7 @@ function profile(problem: NonlinearProblem, k: number, perPoint: Float64Array = 
 }
 
 /** Refines k on the full data; returns the profile at the last accepted k and whether the step left is negligible. */
-function polish(problem: NonlinearProblem, k: number): { at: Profile; steps: number; converged: boolean } {
+function polish(problem: NonlinearProblem, k: number, stdErrTolerance: number): { at: Profile; steps: number; converged: boolean } {
   const dof = problem.t.length - (problem.map ? 1 : 2);
   let current = profile(problem, k);
   let spare: Float64Array = new Float64Array(problem.t.length);
@@ -215,13 +229,13 @@ function polish(problem: NonlinearProblem, k: number): { at: Profile; steps: num
     }
     // Done when the step left is negligible against k itself or against its standard error.
     const stdErr = Math.sqrt(current.sse / dof / current.h);
-    if (Math.abs(delta) <= Math.max(RELATIVE_STEP_TOLERANCE * current.k, STDERR_STEP_TOLERANCE * stdErr)) {
+    if (Math.abs(delta) <= Math.max(RELATIVE_STEP_TOLERANCE * current.k, stdErrTolerance * stdErr)) {
       return { at: current, steps: step, converged: true };
     }
     let accepted = false;
     // Halve the step until the SSE falls, but not below what the convergence test ignores anyway:
     // each try is a pass over the whole record.
-    const smallest = STDERR_STEP_TOLERANCE * stdErr;
+    const smallest = stdErrTolerance * stdErr;
     for (let halving = 0, scale = 1; halving < 20 && !accepted && (halving === 0 || scale * Math.abs(delta) > smallest); halving++, scale /= 2) {
       const kNew = current.k + scale * delta;
       if (!(kNew > 0)) continue;
@@ -242,7 +256,7 @@ function polish(problem: NonlinearProblem, k: number): { at: Profile; steps: num
 
 /** Residuals and standard errors from the covariance s^2 (J'J)^-1 at the optimum. */
 function finish(problem: NonlinearProblem, at: Profile, iterations: number, converged: boolean): NonlinearFit {
-  const { t, values, map } = problem;
+  const { t, values, map, weights } = problem;
   const n = t.length;
   const residuals = new Array<number>(n);
   let sse = at.sse;
@@ -255,7 +269,7 @@ function finish(problem: NonlinearProblem, at: Profile, iterations: number, conv
     for (let i = 0; i < n; i++) {
       const r = values[i] - S0 - at.span * at.perPoint[i];
       residuals[i] = r;
-      sse += r * r;
+      sse += (weights ? weights[i] : 1) * r * r;
     }
   }
   const { k, jkk, jks, jss } = at;
@@ -284,15 +298,16 @@ function finish(problem: NonlinearProblem, at: Profile, iterations: number, conv
 
 /** Least-squares signal span Sinf - S0 for a fixed k (the model is linear in it). */
 function profiledSpan(problem: NonlinearProblem, k: number): number {
-  const { law, feed, t, values } = problem;
+  const { law, feed, t, values, weights } = problem;
   const reach = maxReactedA(feed);
   const S0 = problem.S0 ?? 0;
   let sff = 0;
   let sfy = 0;
   for (let i = 0; i < t.length; i++) {
     const f = (feed.CA0 - concentrationA(law, feed, k, t[i])) / reach;
-    sff += f * f;
-    sfy += f * (values[i] - S0);
+    const w = weights ? weights[i] : 1;
+    sff += w * f * f;
+    sfy += w * f * (values[i] - S0);
   }
   return sff > 0 ? sfy / sff : 0;
 }
@@ -301,7 +316,7 @@ function profiledSpan(problem: NonlinearProblem, k: number): number {
 function gridStart(problem: NonlinearProblem): { k: number; span: number } {
   const { law, feed, map } = problem;
   const sample = strided(problem, Math.max(1, Math.ceil(problem.t.length / SEARCH_POINTS)));
-  const { t, values } = sample;
+  const { t, values, weights } = sample;
   let tMax = 0;
   for (let i = 0; i < t.length; i++) tMax = Math.max(tMax, t[i]);
   if (!(tMax > 0)) tMax = 1;
@@ -319,7 +334,7 @@ function gridStart(problem: NonlinearProblem): { k: number; span: number } {
       const c = concentrationA(law, feed, k, t[i]);
       const predicted = map ? map.offset + map.slope * c : S0 + (span * (feed.CA0 - c)) / reach;
       const r = values[i] - predicted;
-      sse += r * r;
+      sse += (weights ? weights[i] : 1) * r * r;
     }
     if (sse < best.sse) best = { k, span, sse };
   }
@@ -331,14 +346,18 @@ function strided(problem: NonlinearProblem, stride: number): NonlinearProblem {
   if (stride === 1) return problem;
   const t: number[] = [];
   const values: number[] = [];
+  const w = problem.weights;
+  const weights: number[] | undefined = w ? [] : undefined;
   const n = problem.t.length;
   for (let i = 0; i < n; i += stride) {
     t.push(problem.t[i]);
     values.push(problem.values[i]);
+    if (w) weights!.push(w[i]);
   }
   if ((n - 1) % stride !== 0) {
     t.push(problem.t[n - 1]);
     values.push(problem.values[n - 1]);
+    if (w) weights!.push(w[n - 1]);
   }
-  return { ...problem, t, values };
+  return { ...problem, t, values, weights };
 }

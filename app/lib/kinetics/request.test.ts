@@ -36,7 +36,8 @@ describe("fit request validation", () => {
 
   it("reports every bad point with its path: non-numbers, NaN, negative concentrations", () => {
     const req = valid();
-    (req.points as unknown[]) = [[0, 0.02], ["5", 0.017], [10, NaN], [15, -0.001], [20], [25, null]];
+    // -0.005 is below zero by more than reading noise (5 % of CA0 = 0.02); -0.0005 is noise around zero
+    (req.points as unknown[]) = [[0, 0.02], ["5", 0.017], [10, NaN], [15, -0.005], [20], [25, null], [30, -0.0005]];
     const errors = errorsOf(req);
     expect(errors.map((e) => e.path)).toEqual(["points[1][0]", "points[2][1]", "points[3][1]", "points[4]", "points[5][1]"]);
     expect(errors[0].message).toMatch(/number/);

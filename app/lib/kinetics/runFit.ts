@@ -1,13 +1,14 @@
 // One fit request -> one result: converts units at the edge, fits the requested rate law
-// (straight line and nonlinear), compares the other laws, runs the diagnostics and the
-// reference check. Shared by the command line, API routes and the browser preview.
+// (the weighted straight line that marks, the unweighted hand line, and the curve fit that
+// cross-checks them), compares the other laws, runs the diagnostics and the reference check.
+// Shared by the command line, API routes and the browser preview.
 
 import {
-  RATE_LAWS,
   concentrationA,
   finalCA,
   lawFromOrders,
   limitingReagent,
+  lineY,
   maxReactedA,
   modelName,
   rateConstantUnit,
@@ -15,12 +16,14 @@ import {
   type ModelName,
   type RateLaw,
 } from "./rateLaws.ts";
-import { fromCA } from "./measurement.ts";
+import { fromCA, measurementMap, signalMap, type AffineMap } from "./measurement.ts";
 import { rateConstantAt } from "./arrhenius.ts";
 import {
   checkBeyondAsymptote,
   checkConverged,
+  checkCurvature,
   checkFewPoints,
+  checkFitsDisagree,
   checkLowConversion,
   checkOrderMismatch,
   checkStraightLineBias,
@@ -28,26 +31,26 @@ import {
   checkUnitSlip,
   type Flag,
 } from "./diagnostics.ts";
-import { curvatureFlag, fitLaw, timeOrder, toSI, type LawFit, type RunData } from "./lawFit.ts";
+import { fitLaw, searchStartOffset, timeOrder, toSI, type LawFit, type RunData } from "./lawFit.ts";
+import { chooseNoiseModel, noiseWeights, type NoiseModel } from "./noise.ts";
+import { fitNonlinear, type NonlinearFit } from "./nonlinearFit.ts";
+import { fitMarkingLine, type MarkingLine } from "./markingLine.ts";
+import { linearise, type CurveLinearisation } from "./curveJacobian.ts";
+import { findOutlier } from "./outliers.ts";
+import { checkFeed, formatFactor } from "./feedCheck.ts";
+import { candidateLaws, compare, type FittedCandidate, type LawComparison, type OrderComparison } from "./orderComparison.ts";
+import { runsTest, confidenceInterval } from "./statistics.ts";
+import jStat from "jstat";
 import { celsiusToKelvin, molPerLitrePer, secondsPer, type ConcentrationUnit, type TimeUnit } from "./units.ts";
 import type { FitRequest } from "./request.ts";
+
+export type { LawComparison, OrderComparison };
 
 /** Marking tolerance when the request gives none: published k scatter 20-30 % (common practice, no source). */
 export const DEFAULT_TOLERANCE_PCT = 20;
 const CURVE_POINTS = 61;
-
-export interface LawComparison {
-  model: ModelName;
-  k: number;
-  kUnit: "1/s" | "L/(mol*s)";
-  kStdErr: number;
-  /** residual sum of squares of the nonlinear fit, in the measured quantity's units squared */
-  sse: number;
-  /** residual standard deviation of the nonlinear fit, measured units */
-  residualStdDev: number;
-  /** whether the runs test finds systematic bending for this law */
-  curved: boolean;
-}
+/** level of the F-test that accepts a free start offset (a rule of this engine) */
+export const START_OFFSET_P = 0.01;
 
 /**
  * The contract fields come first (model ... reference); the rest are extras.
@@ -55,20 +58,50 @@ export interface LawComparison {
  */
 export interface FitResult {
   model: ModelName;
-  /** k from the straight-line fit, per second (1/s or L/(mol s)) */
+  /** the marking k, per second (1/s or L/(mol s)), defined on A; from `kSource` */
   k: number;
   kUnit: "1/s" | "L/(mol*s)";
   kStdErr: number;
   kCI95: [number, number];
+  /** weighted R^2 of the marking line */
   r2: number;
-  /** points used in the straight-line fit */
+  /** readings in the marking line */
   n: number;
+  /** the estimator behind k: the weighted straight line (the usual case) or the curve fit */
+  kSource: "weighted-line" | "curve";
+  /** k is defined on A: -dCA/dt = k CA^orderA CB^orderB */
+  kDefinedOn: "A";
+  /** the rate law k belongs to, as text */
+  rateLaw: string;
+  /** the noise model behind every weight, and its estimated scale (sd = scale * v, noise.ts) */
+  noise: { model: NoiseModel; chosen: "request" | "residuals"; scale: number };
+  /** the marking fit: weighted least squares of the textbook straight line */
+  weightedLine: {
+    k: number;
+    kStdErr: number;
+    kCI95: [number, number];
+    r2: number;
+    intercept: number;
+    interceptStdErr: number;
+    /** start-time offset the intercept implies (intercept / k), request's time unit */
+    timeOffset: number;
+    rows: number[];
+    /** relative weight of each row (largest 1) */
+    weights: number[];
+    residuals: number[];
+    /** rows without a straight-line value (at or past the long-time limit), left out */
+    excludedRows: number[];
+    /** share of var(k) due to the fitted Sinf (0 when Sinf was given) */
+    sinfShare: number;
+  };
   nonlinear: {
     k: number;
     kStdErr: number;
     kCI95: [number, number];
     /** final signal fitted as a second parameter (signal units), when the request left Sinf out */
     Sinf?: { value: number; stdErr: number; ci95: [number, number] };
+    /** start offset estimated because the first readings were not at the feed: the reaction had run this long (request's time unit) at the clock's zero */
+    start?: { offset: number; stdErr: number; ci95: [number, number]; F: number; p: number };
     residualStdDev: number;
     /** measured value minus fitted value per row, in the request's units */
     residuals: number[];
@@ -82,8 +115,17 @@ export interface FitResult {
     withinTolerance: boolean;
     tolerancePct: number;
     temperatureK?: number;
+    /** what the request's reference k was defined on; kAtT is always on A */
+    definedOn: "A" | "reaction";
+    /** the factor applied to carry the reference to k on A (a for "reaction", else 1) */
+    factorToA: number;
   };
+  /** the unweighted straight line, the hand method (for checking a group's own k) */
   line: {
+    k: number;
+    kStdErr: number;
+    kCI95: [number, number];
+    r2: number;
     /** the textbook y plotted against t, and its slope = slopeFactor * k */
     form: string;
     slopeFactor: number;
@@ -97,24 +139,21 @@ export interface FitResult {
     rows: number[];
     residuals: number[];
   };
-  /**
-   * Curve fits of every supported law on the same rows; on records longer than
-   * COMPARISON_POINTS, on that many evenly spaced rows (`points` says how many).
-   */
-  orderComparison?: { best: ModelName; laws: LawComparison[]; points: number };
+  orderComparison?: OrderComparison;
   limitingReagent: "A" | "B";
   /** long-time CA set by stoichiometry, request's concentration unit */
   finalCA: number;
   /** share of the limiting reagent reacted by the last time, from the nonlinear fit */
   fractionReacted: number;
-  /** predicted CA and measured value from the nonlinear fit, request's units */
+  /** predicted CA and measured value from the nonlinear fit, request's units (times as recorded) */
   curve: { t: number[]; CA: number[]; value: number[] };
   units: { time: TimeUnit; concentration: ConcentrationUnit };
 }
 
 export function runFit(request: FitRequest): FitResult {
   const data = toSI(request);
-  const { feed } = data;
+  const { feed, measurement } = data;
+  const kind = measurement.kind;
   const law = lawFromOrders(request.reaction.orderA, request.reaction.orderB);
   if (!law) throw new Error("unsupported orders: validate the request first");
   const throughOrigin = request.options?.lineThroughOrigin ?? false;
@@ -123,11 +162,47 @@ export function runFit(request: FitRequest): FitResult {
   const n = data.t.length;
   const order = timeOrder(data.t);
   const lastRow = order[n - 1];
-
-  const fit = fitLaw(law, data, throughOrigin);
-  const { line, nonlinear } = fit;
   const model = modelName(law, feed);
-  const k = line ? line.slope : NaN;
+  const sinfFitted = measurement.kind === "signal" && measurement.Sinf === undefined;
+
+  // 1. unweighted fits: the hand line, and a curve fit to find the noise model
+  const hand = fitLaw(law, data, throughOrigin);
+  const expected0 = expectedValues(hand.nonlinear, data.values);
+  const noise = chooseNoiseModel(request.options?.noise ?? "estimate", kind, expected0, hand.nonlinear.residuals);
+  const weights = noise.model === "absolute" ? undefined : noiseWeights(noise.model, kind, expected0);
+
+  // 2. the curve fit under the noise model (the same fit when noise is absolute)
+  let curve: NonlinearFit = weights ? refitCurve(law, data, hand, weights) : hand.nonlinear;
+  const fixedCurve = curve;
+  let map: AffineMap = sinfFitted ? signalMap((measurement as { S0: number }).S0, curve.Sinf!.value, feed) : hand.map;
+  let t0 = 0;
+  let start: FitResult["nonlinear"]["start"];
+
+  // 3. the marking line
+  let lin = linearise(curveAt(law, data, curve, map, 0, false, weights));
+  let mark = markingLine(law, data, map, noise.model, throughOrigin, curve, 0, lin);
+
+  // 4. free start: a clearly positive intercept means the reaction was under way at the clock's zero
+  if (mark && !throughOrigin && mark.intercept > 3 * mark.interceptStdErr && mark.slope > 0 && n >= 6) {
+    const guess = mark.intercept / mark.slope;
+    const found = searchStartOffset(law, data, sinfFitted ? undefined : map, weights, curve.k, 3 * guess);
+    const p = curve.dof;
+    const F = ((curve.sse - found.fit.sse) * (p - 1)) / found.fit.sse;
+    const pValue = 1 - jStat.centralF.cdf(F, 1, p - 1);
+    if (found.t0 > 0 && found.fit.converged && F > 0 && pValue < START_OFFSET_P) {
+      t0 = found.t0;
+      curve = found.fit;
+      if (sinfFitted) map = signalMap((measurement as { S0: number }).S0, curve.Sinf!.value, feed);
+      lin = linearise(curveAt(law, data, curve, map, t0, true, weights));
+      const s2 = curve.sse / (curve.dof - 1);
+      const t0Index = lin ? lin.params.indexOf("t0") : -1;
+      const kSe = lin ? Math.sqrt(s2 * lin.inverse[0]) : NaN;
+      const t0Se = lin && t0Index >= 0 ? Math.sqrt(s2 * lin.inverse[t0Index * lin.params.length + t0Index]) : NaN;
+      curve = { ...curve, kStdErr: kSe, kCI95: confidenceInterval(curve.k, kSe, curve.dof - 1), dof: curve.dof - 1, residualStdDev: Math.sqrt(s2) };
+      start = { offset: t0 / ts, stdErr: t0Se / ts, ci95: confidenceInterval(t0, t0Se, curve.dof).map((x) => x / ts) as [number, number], F, p: pValue };
+      mark = markingLine(law, data, map, noise.model, throughOrigin, curve, t0, lin);
+    }
+  }
 
   const flags: Flag[] = [];
   const push = (f: Flag | null) => {
@@ -135,119 +210,359 @@ export function runFit(request: FitRequest): FitResult {
   };
   push(checkFewPoints(n));
   push(checkTimeOrder(data.t));
-  const end = finalCA(feed);
-  push(checkBeyondAsymptote(fit.beyondRows, `CA = ${formatNumber(end / cs)} ${request.units.concentration}`));
-  const fractionReacted = (feed.CA0 - concentrationA(law, feed, nonlinear.k, data.t[lastRow])) / maxReactedA(feed);
-  push(checkLowConversion(fractionReacted, limitingReagent(feed), lastRow));
-  const curvature = curvatureFlag(fit, order);
-  push(curvature);
-  push(checkConverged(nonlinear.converged));
-  if (line) push(checkStraightLineBias(line.slope, line.slopeStdErr, nonlinear.k, nonlinear.kStdErr));
 
-  let orderComparison: FitResult["orderComparison"];
+  // exact data: the curve fit's residuals are rounding (a millionth of a millionth of the change)
+  const change = Math.abs(map.slope * maxReactedA(feed));
+  const exact = curve.residualStdDev * (weights ? typicalScale(expected0, kind) : 1) <= 1e-9 * change;
+
+  // noise sd of each reading, for the feed and asymptote checks
+  const sd = readingSd(curve, weights, data, kind, expected0);
+  const end = finalCA(feed);
+  const feedFinding = checkFeed({
+    feed,
+    measurement,
+    map,
+    endKnown: !sinfFitted,
+    t: data.t,
+    values: data.values,
+    sd,
+    feedText: feedText(request, kind),
+    concentrationUnit: request.units.concentration,
+  });
+  if (feedFinding) flags.push({ code: "feed-mismatch", message: feedFinding.message, rows: feedFinding.rows, factor: feedFinding.factor });
+
+  // readings past the long-time limit: left out of the lines; flagged when beyond noise
+  const excluded = mark ? mark.excludedRows : hand.beyondRows;
+  const beyond = excluded.filter((i) => {
+    const p = (feed.CA0 - (data.values[i] - map.offset) / map.slope) / maxReactedA(feed);
+    const band = (3 * sd[i]) / change;
+    return p - 1 > band || predictedProgress(law, feed, curve.k, data.t[i] + t0) < 0.9;
+  });
+  if (!feedFinding) push(checkBeyondAsymptote(beyond, `CA = ${formatNumber(end / cs)} ${request.units.concentration}`));
+
+  const fractionReacted = (feed.CA0 - concentrationA(law, feed, curve.k, data.t[lastRow] + t0)) / maxReactedA(feed);
+  push(checkLowConversion(fractionReacted, limitingReagent(feed), lastRow));
+  const curvature = curvatureOf(curve.residuals, weights, order, exact);
+  push(curvature);
+  push(checkConverged(curve.converged));
+
+  // the k that marks
+  const useCurve = !mark || !Number.isFinite(mark.slopeStdErr);
+  const k = useCurve ? curve.k : mark!.slope;
+  const kStdErr = useCurve ? curve.kStdErr : mark!.slopeStdErr;
+  const kCI95: [number, number] = useCurve ? curve.kCI95 : mark!.slopeCI95;
+
+  if (mark && !exact) {
+    const prefer = curvature || !curve.converged ? "weighted-line" : "curve";
+    const why =
+      prefer === "curve"
+        ? "it is fitted to the readings as measured, with no transform to distort their noise" + (start ? ", and it allows for the late start it found" : "")
+        : "the curve fit's residuals bend or it did not settle, so its k is the less reliable";
+    push(checkFitsDisagree(mark.slope, mark.slopeStdErr, curve.k, curve.kStdErr, prefer, why));
+  }
+  if (hand.line && !exact) push(checkStraightLineBias(hand.line.slope, hand.line.slopeStdErr, k, kStdErr));
+
+  // one reading far from the rest
+  if (lin && !exact) {
+    const outlier = findOutlier(curve.residuals, weights, lin.leverage, lin.params.length);
+    if (outlier) {
+      const without = markingLine(law, data, map, noise.model, throughOrigin, curve, t0, lin, new Set([outlier.row]));
+      const kWithout = without ? without.slope : NaN;
+      flags.push({
+        code: "outlier",
+        message: `Row ${outlier.row} lies far from the rest (studentised residual ${outlier.t.toFixed(1)}, beyond ${outlier.critical.toFixed(1)} for ${n} readings): without it k would be ${formatNumber(kWithout)} instead of ${formatNumber(k)} ${rateConstantUnit(law)}. The mark keeps every reading unless a person excludes one.`,
+        rows: [outlier.row],
+        kWithout,
+      });
+    }
+  }
+
+  let orderComparison: OrderComparison | undefined;
   if (request.options?.compareOrders ?? true) {
-    orderComparison = compareLaws(data, fit, curvature !== null, order, throughOrigin);
+    orderComparison = compareLaws(law, data, fixedCurve, weights, curvature !== null && t0 === 0, order, throughOrigin, exact);
+    const asked = orderComparison.laws.find((l) => l.model === model || l.equivalent.includes(model));
     const best = orderComparison.laws.find((l) => l.model === orderComparison!.best)!;
-    const asked = orderComparison.laws.find((l) => l.model === model)!;
-    push(checkOrderMismatch(n, model, asked.sse, best.model, best.sse));
+    if (asked && !exact) push(checkOrderMismatch(n, model, best.model, asked.deltaAIC, orderComparison.threshold));
   }
 
   let reference: FitResult["reference"];
   if (request.reference) {
     reference = referenceCheck(request, k);
-    push(checkUnitSlip(k, reference.kAtT));
+    if (!feedFinding) push(checkUnitSlip(k, reference.kAtT, law !== "first-order"));
   }
 
   const textbook = textbookLine(law, feed);
+  const handLine = hand.line;
   return {
     model,
     k,
     kUnit: rateConstantUnit(law),
-    kStdErr: line ? line.slopeStdErr : NaN,
-    kCI95: line ? line.slopeCI95 : [NaN, NaN],
-    r2: line ? line.r2 : NaN,
-    n: fit.lineRows.length,
+    kStdErr,
+    kCI95,
+    r2: mark ? mark.r2 : NaN,
+    n: mark ? mark.rows.length : 0,
+    kSource: useCurve ? "curve" : "weighted-line",
+    kDefinedOn: "A",
+    rateLaw: rateLawText(law),
+    noise: { model: noise.model, chosen: noise.chosen, scale: mark ? mark.residualScale / data.valueScale : curve.residualStdDev / data.valueScale },
+    weightedLine: {
+      k: mark ? mark.slope : NaN,
+      kStdErr: mark ? mark.slopeStdErr : NaN,
+      kCI95: mark ? mark.slopeCI95 : [NaN, NaN],
+      r2: mark ? mark.r2 : NaN,
+      intercept: mark ? mark.intercept : NaN,
+      interceptStdErr: mark ? mark.interceptStdErr : NaN,
+      timeOffset: mark ? mark.intercept / mark.slope / ts : NaN,
+      rows: mark ? mark.rows : [],
+      weights: mark ? mark.weights : [],
+      residuals: mark ? mark.residuals : [],
+      excludedRows: mark ? mark.excludedRows : [],
+      sinfShare: mark ? mark.sinfShare : 0,
+    },
     nonlinear: {
-      k: nonlinear.k,
-      kStdErr: nonlinear.kStdErr,
-      kCI95: nonlinear.kCI95,
-      Sinf: nonlinear.Sinf,
-      residualStdDev: nonlinear.residualStdDev / data.valueScale,
-      residuals: nonlinear.residuals.map((r) => r / data.valueScale),
-      iterations: nonlinear.iterations,
-      converged: nonlinear.converged,
+      k: curve.k,
+      kStdErr: curve.kStdErr,
+      kCI95: curve.kCI95,
+      Sinf: curve.Sinf,
+      start,
+      residualStdDev: curve.residualStdDev / data.valueScale,
+      residuals: curve.residuals.map((r) => r / data.valueScale),
+      iterations: curve.iterations,
+      converged: curve.converged,
     },
     flags,
     reference,
     line: {
+      k: handLine ? handLine.slope : NaN,
+      kStdErr: handLine ? handLine.slopeStdErr : NaN,
+      kCI95: handLine ? handLine.slopeCI95 : [NaN, NaN],
+      r2: handLine ? handLine.r2 : NaN,
       form: textbook.y,
       slopeFactor: textbook.factor,
-      intercept: line ? line.intercept : NaN,
-      interceptStdErr: line ? line.interceptStdErr : NaN,
-      timeOffset: line ? line.intercept / line.slope / ts : NaN,
+      intercept: handLine ? handLine.intercept : NaN,
+      interceptStdErr: handLine ? handLine.interceptStdErr : NaN,
+      timeOffset: handLine ? handLine.intercept / handLine.slope / ts : NaN,
       throughOrigin,
-      rows: fit.lineRows,
-      residuals: line ? line.residuals : [],
+      rows: hand.lineRows,
+      residuals: handLine ? handLine.residuals : [],
     },
     orderComparison,
     limitingReagent: limitingReagent(feed),
     finalCA: end / cs,
     fractionReacted,
-    curve: predictedCurve(fit, data, ts, cs),
+    curve: predictedCurve(law, data, curve.k, t0, map, ts, cs),
     units: { ...request.units },
   };
+}
+
+/** -dCA/dt = k CA..., as text. */
+function rateLawText(law: RateLaw): string {
+  switch (law) {
+    case "first-order":
+      return "-dCA/dt = k CA";
+    case "second-order-A":
+      return "-dCA/dt = k CA^2";
+    case "second-order-AB":
+      return "-dCA/dt = k CA CB";
+  }
+}
+
+function expectedValues(fit: NonlinearFit, values: ArrayLike<number>): Float64Array {
+  const out = new Float64Array(values.length);
+  for (let i = 0; i < values.length; i++) out[i] = values[i] - fit.residuals[i];
+  return out;
+}
+
+function typicalScale(expected: ArrayLike<number>, kind: string): number {
+  let top = 0;
+  for (let i = 0; i < expected.length; i++) top = Math.max(top, Math.abs(kind === "conversionA" ? 1 - expected[i] : expected[i]));
+  return top;
+}
+
+function refitCurve(law: RateLaw, data: RunData, hand: LawFit, weights: Float64Array): NonlinearFit {
+  const { feed, measurement, t, values } = data;
+  if (measurement.kind === "signal" && measurement.Sinf === undefined) {
+    return fitNonlinear({ law, feed, t, values, S0: measurement.S0, weights }, hand.nonlinear.k);
+  }
+  return fitNonlinear({ law, feed, t, values, map: hand.map, weights }, hand.nonlinear.k);
+}
+
+function curveAt(law: RateLaw, data: RunData, curve: NonlinearFit, map: AffineMap, t0: number, t0Free: boolean, weights?: ArrayLike<number>) {
+  const sinfFitted = data.measurement.kind === "signal" && data.measurement.Sinf === undefined;
+  return {
+    law,
+    feed: data.feed,
+    t: data.t,
+    k: curve.k,
+    t0,
+    t0Free,
+    map: sinfFitted ? undefined : map,
+    S0: sinfFitted ? (data.measurement as { S0: number }).S0 : undefined,
+    span: sinfFitted ? curve.Sinf!.value - (data.measurement as { S0: number }).S0 : undefined,
+    weights,
+  };
+}
+
+function markingLine(
+  law: RateLaw,
+  data: RunData,
+  map: AffineMap,
+  noise: NoiseModel,
+  throughOrigin: boolean,
+  curve: NonlinearFit,
+  t0: number,
+  lin: CurveLinearisation | null,
+  skip?: ReadonlySet<number>,
+): MarkingLine | null {
+  const { feed, t } = data;
+  const expectedCA = new Float64Array(t.length);
+  for (let i = 0; i < t.length; i++) expectedCA[i] = concentrationA(law, feed, curve.k, t[i] + t0);
+  let sinf: { span: number; influence: Float64Array } | undefined;
+  if (data.measurement.kind === "signal" && data.measurement.Sinf === undefined && lin) {
+    const p = lin.params.length;
+    const row = lin.params.indexOf("span");
+    sinf = { span: curve.Sinf!.value - data.measurement.S0, influence: lin.influence.subarray(row * t.length, (row + 1) * t.length) };
+    void p;
+  }
+  return fitMarkingLine({ law, feed, kind: data.measurement.kind, noise, t, values: data.values, map, throughOrigin, expectedCA, sinf, skip, sigma: curve.residualStdDev });
+}
+
+/** sd of each reading under the curve fit's noise scale, the smaller of that and a model-free estimate. */
+function readingSd(curve: NonlinearFit, weights: Float64Array | undefined, data: RunData, kind: string, expected: ArrayLike<number>): Float64Array {
+  const n = data.t.length;
+  const scale = Math.min(curve.residualStdDev, modelFreeScale(data, weights));
+  const out = new Float64Array(n);
+  for (let i = 0; i < n; i++) out[i] = weights ? scale / Math.sqrt(weights[i]) : scale;
+  void kind;
+  void expected;
+  return out;
+}
+
+/**
+ * Noise scale from the readings alone: each reading against the straight line through its two
+ * neighbours in time, root mean square (the curvature of the run between neighbours only adds).
+ */
+function modelFreeScale(data: RunData, weights: Float64Array | undefined): number {
+  const order = timeOrder(data.t);
+  const n = order.length;
+  if (n < 5) return Infinity;
+  let sum = 0;
+  let count = 0;
+  for (let j = 1; j < n - 1; j++) {
+    const a = order[j - 1];
+    const i = order[j];
+    const b = order[j + 1];
+    const span = data.t[b] - data.t[a];
+    if (!(span > 0)) continue;
+    const fa = (data.t[b] - data.t[i]) / span;
+    const fb = (data.t[i] - data.t[a]) / span;
+    const r = data.values[i] - fa * data.values[a] - fb * data.values[b];
+    const w = weights ? weights[i] : 1;
+    sum += (w * r * r) / (1 + fa * fa + fb * fb);
+    count++;
+  }
+  return count >= 3 ? Math.sqrt(sum / count) : Infinity;
+}
+
+function predictedProgress(law: RateLaw, feed: RunData["feed"], k: number, t: number): number {
+  return (feed.CA0 - concentrationA(law, feed, k, t)) / maxReactedA(feed);
+}
+
+function curvatureOf(residuals: number[], weights: Float64Array | undefined, order: ArrayLike<number>, exact: boolean): Flag | null {
+  const inOrder = new Float64Array(order.length);
+  for (let i = 0; i < order.length; i++) inOrder[i] = residuals[order[i]] * (weights ? Math.sqrt(weights[order[i]]) : 1);
+  return checkCurvature(inOrder, order, exact);
+}
+
+function feedText(request: FitRequest, kind: string): string {
+  const u = request.units.concentration;
+  if (kind === "concentrationB" || (request.measurement.kind === "absorbance" && request.measurement.species === "B")) return `CB0 = ${request.feed.CB0} ${u}`;
+  if (request.measurement.kind === "signal") return `S0 = ${request.measurement.S0}`;
+  return `CA0 = ${request.feed.CA0} ${u}`;
 }
 
 // Discriminating between rate laws needs far fewer points than a long logger record has: above
 // this many, the comparison runs on evenly spaced rows (every law on the same ones).
 export const COMPARISON_POINTS = 5000;
 
-/** Curve fits of every law the feed allows, on the same data; best = smallest residual sum of squares. */
+/** Curve fits of every law the feed allows, on the same rows with the same weights, compared by AIC. */
 function compareLaws(
+  requested: RateLaw,
   data: RunData,
-  requested: LawFit,
+  requestedFit: NonlinearFit,
+  weights: Float64Array | undefined,
   requestedCurved: boolean,
   order: ArrayLike<number>,
   throughOrigin: boolean,
-): NonNullable<FitResult["orderComparison"]> {
+  exact: boolean,
+): OrderComparison {
   const n = data.t.length;
   const stride = Math.ceil(n / COMPARISON_POINTS);
-  const sample = stride === 1 ? data : everyNth(data, stride);
-  const sampleOrder = stride === 1 ? order : timeOrder(sample.t);
-  const { feed, valueScale } = sample;
-  // the A-B law needs some B; without it only the A-only laws are compared
-  const candidates = RATE_LAWS.filter((l: RateLaw) => l !== "second-order-AB" || feed.CB0 > 0);
-  const laws: LawComparison[] = [];
-  let best: LawComparison | null = null;
-  for (const law of candidates) {
-    const reuse = stride === 1 && law === requested.law;
-    const f = reuse ? requested : fitLaw(law, sample, throughOrigin, true);
-    const entry: LawComparison = {
-      model: modelName(law, feed),
-      k: f.nonlinear.k,
-      kUnit: rateConstantUnit(law),
-      kStdErr: f.nonlinear.kStdErr,
-      sse: f.nonlinear.sse / (valueScale * valueScale),
-      residualStdDev: f.nonlinear.residualStdDev / valueScale,
-      curved: reuse ? requestedCurved : curvatureFlag(f, sampleOrder) !== null,
-    };
-    laws.push(entry);
-    if (!best || entry.sse < best.sse) best = entry;
+  const rows = stride === 1 ? null : sampleRows(n, stride);
+  const sample = rows ? pick(data, rows) : data;
+  const sampleWeights = rows && weights ? Float64Array.from(rows, (i) => weights[i]) : weights;
+  const sampleOrder = rows ? timeOrder(sample.t) : order;
+  const fits: FittedCandidate[] = [];
+  for (const c of candidateLaws(data.feed)) {
+    const group = [c.law, ...c.equivalent];
+    const isRequested = group.includes(requested);
+    const law = isRequested ? requested : c.law;
+    const equivalent = group.filter((l) => l !== law);
+    const reuse = isRequested && !rows;
+    const f = reuse ? requestedFit : otherLaw(law, sample, sampleWeights, isRequested ? requestedFit.k : halfLifeSeed(requested, law, data.feed, requestedFit.k), throughOrigin);
+    let raw = 0;
+    for (const r of f.residuals) raw += r * r;
+    fits.push({
+      law,
+      equivalent,
+      k: f.k,
+      kStdErr: f.kStdErr,
+      sse: raw / (sample.valueScale * sample.valueScale),
+      weightedSse: f.sse,
+      residualStdDev: Math.sqrt(raw / Math.max(1, f.dof)) / sample.valueScale,
+      curved: reuse ? requestedCurved : curvatureOf(f.residuals, sampleWeights, sampleOrder, exact) !== null,
+    });
   }
-  return { best: best!.model, laws, points: sample.t.length };
+  // rounding level: a millionth of a millionth of the change, per reading
+  let lo = Infinity;
+  let hi = -Infinity;
+  for (const v of sample.values) {
+    lo = Math.min(lo, v);
+    hi = Math.max(hi, v);
+  }
+  const floor = sample.t.length * (1e-12 * (hi - lo || 1)) ** 2;
+  return compare(requested, data.feed, fits, sample.t.length, floor);
 }
 
-/** Every stride-th row (and the last), for the order comparison on long records. */
-function everyNth(data: RunData, stride: number): RunData {
-  const n = data.t.length;
+/**
+ * Seed for another law's curve fit: the k that reaches half of the possible change at the same
+ * time as the requested law's fit does (both forms are exact there), which starts the
+ * refinement near the other law's optimum.
+ */
+function halfLifeSeed(requested: RateLaw, other: RateLaw, feed: RunData["feed"], k: number): number | undefined {
+  const half = feed.CA0 - 0.5 * maxReactedA(feed);
+  const tHalf = lineY(requested, feed, half) / k;
+  const seed = lineY(other, feed, half) / tHalf;
+  return seed > 0 && Number.isFinite(seed) ? seed : undefined;
+}
+
+/** Curve fit of a law for the comparison only (a looser stop: its SSE is what counts). */
+function otherLaw(law: RateLaw, data: RunData, weights: ArrayLike<number> | undefined, kGuess: number | undefined, throughOrigin: boolean): NonlinearFit {
+  const { feed, measurement, t, values } = data;
+  if (kGuess === undefined) return fitLaw(law, data, throughOrigin, true, weights).nonlinear;
+  if (measurement.kind === "signal" && measurement.Sinf === undefined) return fitNonlinear({ law, feed, t, values, S0: measurement.S0, weights }, kGuess, 0.03);
+  return fitNonlinear({ law, feed, t, values, map: measurementMap(measurement, feed), weights }, kGuess, 0.03);
+}
+
+function sampleRows(n: number, stride: number): number[] {
   const rows: number[] = [];
   for (let i = 0; i < n; i += stride) rows.push(i);
   if (rows[rows.length - 1] !== n - 1) rows.push(n - 1);
-  return {
-    ...data,
-    t: Float64Array.from(rows, (i) => data.t[i]),
-    values: Float64Array.from(rows, (i) => data.values[i]),
-  };
+  return rows;
+}
+
+function pick(data: RunData, rows: number[]): RunData {
+  return { ...data, t: Float64Array.from(rows, (i) => data.t[i]), values: Float64Array.from(rows, (i) => data.values[i]) };
 }
 
 /** Reference k carried to the run temperature, and how far the fitted k is from it. */
@@ -255,29 +570,35 @@ function referenceCheck(request: FitRequest, k: number): NonNullable<FitResult["
   const ref = request.reference!;
   const tolerancePct = ref.tolerancePct ?? DEFAULT_TOLERANCE_PCT;
   const temperatureK = request.temperatureC === undefined ? undefined : celsiusToKelvin(request.temperatureC);
+  const definedOn = ref.definedOn ?? "A";
+  // rate of reaction r = -(1/a) dCA/dt = k_r CA..., so -dCA/dt = a k_r CA...: k on A = a k_r
+  const factorToA = definedOn === "reaction" ? request.reaction.a : 1;
+  const kRef = ref.k * factorToA;
   const kAtT =
     ref.EaKJ === undefined || temperatureK === undefined || ref.TrefC === undefined
-      ? ref.k
-      : rateConstantAt(ref.k, celsiusToKelvin(ref.TrefC), ref.EaKJ * 1000, temperatureK);
+      ? kRef
+      : rateConstantAt(kRef, celsiusToKelvin(ref.TrefC), ref.EaKJ * 1000, temperatureK);
   const deviationPct = ((k - kAtT) / kAtT) * 100;
-  return { kAtT, deviationPct, withinTolerance: Math.abs(deviationPct) <= tolerancePct, tolerancePct, temperatureK };
+  return { kAtT, deviationPct, withinTolerance: Math.abs(deviationPct) <= tolerancePct, tolerancePct, temperatureK, definedOn, factorToA };
 }
 
 /** CA and the measured value predicted by the curve fit, from 0 to the last time, in the request's units. */
-function predictedCurve(fit: LawFit, data: RunData, ts: number, cs: number): FitResult["curve"] {
+function predictedCurve(law: RateLaw, data: RunData, k: number, t0: number, map: AffineMap, ts: number, cs: number): FitResult["curve"] {
   let tMax = 0;
   for (const ti of data.t) tMax = Math.max(tMax, ti);
   const curve: FitResult["curve"] = { t: [], CA: [], value: [] };
   for (let i = 0; i < CURVE_POINTS; i++) {
     const ti = (tMax * i) / (CURVE_POINTS - 1);
-    const c = concentrationA(fit.law, data.feed, fit.nonlinear.k, ti);
+    const c = concentrationA(law, data.feed, k, ti + t0);
     curve.t.push(ti / ts);
     curve.CA.push(c / cs);
-    curve.value.push(fromCA(fit.map, c) / data.valueScale);
+    curve.value.push(fromCA(map, c) / data.valueScale);
   }
   return curve;
 }
 
 function formatNumber(x: number): string {
-  return Number(x.toPrecision(4)).toString();
+  return Number.isFinite(x) ? Number(x.toPrecision(4)).toString() : String(x);
 }
+void runsTest;
+void formatFactor;

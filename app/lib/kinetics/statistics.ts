@@ -5,8 +5,17 @@ import jStat from "jstat";
 /** Two-sided Student t critical value, e.g. level 0.95 -> t(0.975, dof). NaN without degrees of freedom. */
 export function tCritical(dof: number, level = 0.95): number {
   if (!(dof >= 1)) return NaN;
-  return jStat.studentt.inv(0.5 + level / 2, dof);
+  // the quantile is an iterative inversion: remember the few (dof, level) pairs a session meets
+  const key = dof * 1e6 + level;
+  let t = quantiles.get(key);
+  if (t === undefined) {
+    t = jStat.studentt.inv(0.5 + level / 2, dof) as number;
+    if (quantiles.size > 4096) quantiles.clear();
+    quantiles.set(key, t);
+  }
+  return t;
 }
+const quantiles = new Map<number, number>();
 
 /** Symmetric confidence interval estimate +/- t * stdErr. */
 export function confidenceInterval(estimate: number, stdErr: number, dof: number, level = 0.95): [number, number] {

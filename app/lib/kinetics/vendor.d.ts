@@ -6,6 +6,10 @@ declare module "jstat" {
       inv(p: number, dof: number): number;
       cdf(x: number, dof: number): number;
     };
+    centralF: {
+      cdf(x: number, df1: number, df2: number): number;
+      inv(p: number, df1: number, df2: number): number;
+    };
     normal: {
       inv(p: number, mean: number, sd: number): number;
       cdf(x: number, mean: number, sd: number): number;

@@ -76,7 +76,7 @@ export default function FitCheck() {
           <div className="grid grid-cols-3 gap-x-4">
             <Field label="CA0" inputMode="decimal" {...bind("CA0")} />
             <Field label="CB0" inputMode="decimal" {...bind("CB0")} />
-            <SelectField label="unit" name="concentrationUnit" value={values.concentrationUnit} onChange={set("concentrationUnit")} options={["mol/L", "mmol/L"]} />
+            <SelectField label="unit (feed and readings)" name="concentrationUnit" value={values.concentrationUnit} onChange={set("concentrationUnit")} options={["mol/L", "mmol/L"]} />
           </div>
           <div className="grid grid-cols-3 gap-x-4">
             <Field label="Run temperature, °C" inputMode="decimal" {...bind("temperatureC")} />
