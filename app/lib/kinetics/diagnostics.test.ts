@@ -51,7 +51,7 @@ describe("diagnostics", () => {
     req.reference = { k: 0.11 };
     const f = flag(req, "unit-slip");
     expect(f?.message).toMatch(/1\/60\.0 times/);
-    expect(f?.message).toMatch(/times in seconds entered with the unit min/);
+    expect(f?.message).toMatch(/seconds entered as minutes/);
     const right = request("second-order-AB", 0.11);
     right.reference = { k: 0.11 };
     expect(flag(right, "unit-slip")).toBeUndefined();

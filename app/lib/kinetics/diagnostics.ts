@@ -96,15 +96,16 @@ export function checkLowConversion(fractionReacted: number, limiting: "A" | "B",
 // R = fitted k / reference k. Times read t times too short (unit says s, numbers are minutes)
 // make k t times too large; concentrations read c times too large make a second-order k c times
 // too small (k ~ 1/(C t)); a first-order k has no concentration in it.
+// Hints carry no full stop: the marking feedback quotes the text between "perhaps" and the first one.
 const TIME_SLIPS: { factor: number; hint: string }[] = [
-  { factor: 60, hint: "times in minutes entered with the unit s (or hours with the unit min)" },
-  { factor: 1 / 60, hint: "times in seconds entered with the unit min (or minutes with the unit h), or a reference k per minute" },
-  { factor: 3600, hint: "times in hours entered with the unit s" },
-  { factor: 1 / 3600, hint: "times in seconds entered with the unit h, or a reference k per hour" },
+  { factor: 60, hint: "minutes entered as seconds (or hours as minutes)" },
+  { factor: 1 / 60, hint: "seconds entered as minutes (or minutes as hours), or a reference k per minute" },
+  { factor: 3600, hint: "hours entered as seconds" },
+  { factor: 1 / 3600, hint: "seconds entered as hours, or a reference k per hour" },
 ];
 const CONCENTRATION_SLIPS: { factor: number; hint: string }[] = [
-  { factor: 1 / 1000, hint: "concentrations in mmol/L entered with the unit mol/L (feed and readings)" },
-  { factor: 1000, hint: "concentrations in mol/L entered with the unit mmol/L (feed and readings), or a reference k in L/(mmol s)" },
+  { factor: 1 / 1000, hint: "mmol/L entered as mol/L, for the feed and the readings alike" },
+  { factor: 1000, hint: "mol/L entered as mmol/L, for the feed and the readings alike, or a reference k in L/(mmol s)" },
 ];
 
 /**
