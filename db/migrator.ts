@@ -7,6 +7,7 @@ import * as m0002 from "./migrations/0002-sign-in-attempts-by-time";
 import * as m0003 from "./migrations/0003-planning";
 import * as m0004 from "./migrations/0004-job-queue";
 import * as m0010 from "./migrations/0010-user-sessions";
+import * as m0011 from "./migrations/0011-account-roles-course-archive";
 
 const migrations = [
   { name: "0001-foundation", ...m0001 },
@@ -14,6 +15,7 @@ const migrations = [
   { name: "0003-planning", ...m0003 },
   { name: "0004-job-queue", ...m0004 },
   { name: "0010-user-sessions", ...m0010 },
+  { name: "0011-account-roles-course-archive", ...m0011 },
 ];
 
 export function createMigrator(sequelize: Sequelize, opts: { quiet?: boolean } = {}) {

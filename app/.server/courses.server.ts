@@ -8,33 +8,34 @@ export interface CourseSummary {
   code: string;
   title: string;
   term: string;
-  myRole: CourseRole;
+  archived: boolean;
+  /** the person's own role in the course; null for an admin who is not a member */
+  myRole: CourseRole | null;
   memberCounts: Record<CourseRole, number>;
 }
 
 /** The courses a person can open, with member counts per role (admins see all). */
 export async function coursesFor(user: User): Promise<CourseSummary[]> {
-  const courses =
+  const memberships = await CourseMembership.findAll({
+    where: { userId: user.id },
+    include: [{ model: Course, as: "course" }],
+  });
+  const own = new Map(memberships.map((m) => [m.courseId as number, m.role]));
+  const list =
     user.role === "admin"
-      ? (await Course.findAll({ order: [["code", "ASC"]] })).map((c) => ({ c, role: "instructor" as CourseRole }))
-      : (
-          await CourseMembership.findAll({
-            where: { userId: user.id },
-            include: [{ model: Course, as: "course" }],
-            order: [[{ model: Course, as: "course" }, "code", "ASC"]],
-          })
-        ).map((m) => ({ c: m.course!, role: m.role }));
-  if (!courses.length) return [];
+      ? await Course.findAll({ order: [["code", "ASC"], ["term", "ASC"]] })
+      : memberships.map((m) => m.course!).sort((a, b) => a.code.localeCompare(b.code) || a.term.localeCompare(b.term));
+  if (!list.length) return [];
   const counts = (await CourseMembership.findAll({
     attributes: ["courseId", "role", [fn("count", col("id")), "n"]],
-    where: { courseId: courses.map((x) => x.c.id) },
+    where: { courseId: list.map((c) => c.id) },
     group: ["courseId", "role"],
     raw: true,
   })) as unknown as Array<{ courseId: number; role: CourseRole; n: string }>;
-  return courses.map(({ c, role }) => {
+  return list.map((c) => {
     const memberCounts = { instructor: 0, demonstrator: 0, student: 0 };
     for (const row of counts) if (row.courseId === c.id) memberCounts[row.role] = Number(row.n);
-    return { id: c.id, code: c.code, title: c.title, term: c.term, myRole: role, memberCounts };
+    return { id: c.id, code: c.code, title: c.title, term: c.term, archived: c.archivedAt !== null, myRole: own.get(c.id) ?? null, memberCounts };
   });
 }
 
@@ -60,17 +61,13 @@ export async function courseRolesFor(user: Pick<User, "id" | "role">): Promise<C
   );
 }
 
-const ROLE_ORDER: Record<CourseRole, number> = { instructor: 0, demonstrator: 1, student: 2 };
-
-/** Members, staff first, then by name. */
+/** Members by name (not by role, so a row stays where it was when its role changes). */
 export async function courseMembers(courseId: number) {
   const members = await CourseMembership.findAll({
     where: { courseId },
     include: [{ model: User, as: "user", attributes: ["id", "email", "displayName", "passwordHash"] }],
   });
-  return members.sort(
-    (a, b) => ROLE_ORDER[a.role] - ROLE_ORDER[b.role] || a.user!.displayName.localeCompare(b.user!.displayName),
-  );
+  return members.sort((a, b) => a.user!.displayName.localeCompare(b.user!.displayName) || a.id - b.id);
 }
 
 export async function createCourse(actor: User, input: { code: unknown; title: unknown; term: unknown }): Promise<Outcome<Course>> {
@@ -83,7 +80,9 @@ export async function createCourse(actor: User, input: { code: unknown; title: u
   if (!title) errors.title = "Enter the course title.";
   else if (title.length > 200) errors.title = "Use at most 200 characters.";
   if (term.length > 60) errors.term = "Use at most 60 characters.";
-  if (!errors.code && (await Course.findOne({ where: { code } }))) errors.code = `A course with the code ${code} exists already.`;
+  if (!errors.code && (await Course.findOne({ where: { code, term } }))) {
+    errors.code = term ? `A course with the code ${code} exists already in ${term}.` : `A course with the code ${code} and no term exists already; give the term.`;
+  }
   if (Object.keys(errors).length) return { ok: false, errors };
   const course = await sequelize.transaction(async (transaction) => {
     const c = await Course.create({ code, title, term }, { transaction });
@@ -92,4 +91,32 @@ export async function createCourse(actor: User, input: { code: unknown; title: u
     return c;
   });
   return { ok: true, value: course };
+}
+
+/** Instructor (or admin): archives a course, or takes it out of the archive; audited. */
+export async function setCourseArchived(actor: User, courseId: number, archived: boolean): Promise<Outcome> {
+  return sequelize.transaction(async (transaction) => {
+    const course = await Course.findByPk(courseId, { transaction, lock: true });
+    if (!course) return { ok: false as const, errors: { form: "That course no longer exists." } };
+    if ((course.archivedAt !== null) === archived) return { ok: true as const, value: undefined };
+    const before = { archived: course.archivedAt !== null };
+    await course.update({ archivedAt: archived ? new Date() : null }, { transaction });
+    await recordAudit({ actorId: actor.id, action: archived ? "course.archived" : "course.unarchived", entityType: "course", entityId: course.id, before, after: { archived } }, transaction);
+    return { ok: true as const, value: undefined };
+  });
+}
+
+/** Instructor (or admin): takes a person off a course; a course keeps at least one instructor. */
+export async function removeMember(actor: User, courseId: number, membershipId: number): Promise<Outcome<{ name: string }>> {
+  return sequelize.transaction(async (transaction) => {
+    const m = await CourseMembership.findOne({ where: { id: membershipId, courseId }, include: [{ model: User, as: "user" }], transaction });
+    if (!m) return { ok: false as const, errors: { form: "That person is no longer in this course." } };
+    if (m.role === "instructor" && (await CourseMembership.count({ where: { courseId, role: "instructor" }, transaction })) <= 1) {
+      return { ok: false as const, errors: { form: "A course needs at least one instructor; add another before removing this one." } };
+    }
+    const before = { courseId, userId: m.userId, email: m.user!.email, role: m.role };
+    await m.destroy({ transaction });
+    await recordAudit({ actorId: actor.id, action: "membership.removed", entityType: "course_membership", entityId: membershipId, before }, transaction);
+    return { ok: true as const, value: { name: m.user!.displayName } };
+  });
 }

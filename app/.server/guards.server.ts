@@ -2,7 +2,7 @@
 // address) or a 403 page; API routes get 401/403 JSON.
 import { data, redirect } from "react-router";
 import { sessionOf } from "./session.server";
-import { CourseMembership, User, type CourseRole, type Role } from "./db/models.server";
+import { Course, CourseMembership, User, ROLE_LABELS, type CourseRole, type Role } from "./db/models.server";
 
 interface GuardOptions {
   roles?: readonly Role[];
@@ -67,9 +67,41 @@ export async function requireUser(request: Request, options: GuardOptions = {}):
     throw redirect(`/sign-in?returnTo=${encodeURIComponent(url.pathname + url.search)}`);
   }
   if (options.roles && !options.roles.includes(user.role)) {
-    deny(403, `This needs the role ${options.roles.join(" or ")}; you are signed in as ${user.role}.`, api);
+    const names = options.roles.map((r) => ROLE_LABELS[r]).join(" or ");
+    deny(403, `This needs an account of type ${names}; yours is ${ROLE_LABELS[user.role]}.`, api);
   }
   return user;
+}
+
+const STAFF_COURSE_ROLES: readonly CourseRole[] = ["instructor", "demonstrator"];
+
+/**
+ * Whether the person helps run some course: an instructor or demonstrator in a course that is
+ * not archived, whatever their account role (admins and course creators count too). Work that
+ * is not tied to one course (the data-set check) follows this, not the account role.
+ */
+export async function isCourseStaffSomewhere(user: User): Promise<boolean> {
+  if (user.role === "admin" || user.role === "course-creator") return true;
+  const n = await CourseMembership.count({
+    where: { userId: user.id, role: STAFF_COURSE_ROLES as CourseRole[] },
+    include: [{ model: Course, as: "course", where: { archivedAt: null }, required: true }],
+  });
+  return n > 0;
+}
+
+/** A signed-in person who is an instructor or demonstrator in some course (or an admin / course creator). */
+export async function requireCourseStaff(request: Request, options: { api?: boolean } = {}): Promise<User> {
+  const user = await requireUser(request, options);
+  if (!(await isCourseStaffSomewhere(user))) {
+    deny(403, "This needs the instructor or demonstrator role in at least one course.", options.api ?? false);
+  }
+  return user;
+}
+
+/** The caller's own role in a course, or null when not a member (for display; admins may still act). */
+export async function ownCourseRole(user: User, courseId: number): Promise<CourseRole | null> {
+  const m = await CourseMembership.findOne({ where: { courseId, userId: user.id } });
+  return m?.role ?? null;
 }
 
 /** The caller's role in a course (admins act as instructors everywhere), or a 403/404. */

@@ -1,7 +1,7 @@
 // Invitations, password resets and role changes. Each change of a role is audited in the
 // same transaction as the change.
 import type { Transaction } from "sequelize";
-import { sequelize, User, Course, CourseMembership, type CourseRole, type Role, type TokenPurpose, COURSE_ROLES, ROLES } from "./db/models.server";
+import { sequelize, User, Course, CourseMembership, type CourseRole, type Role, type TokenPurpose, COURSE_ROLES, ROLES, ROLE_LABELS } from "./db/models.server";
 import { issueToken, checkToken, consumeToken, tokenMessage } from "./tokens.server";
 import { checkNewPassword, hashPassword, verifyPassword } from "./passwords.server";
 import { recordAudit } from "./audit.server";
@@ -39,8 +39,9 @@ export async function inviteToCourse(actor: User, courseId: number, input: Invit
   await sequelize.transaction(async (transaction) => {
     let user = await User.findOne({ where: { email }, transaction });
     if (!user) {
-      // A person new to Ratebook gets the site-wide role named like their course role.
-      user = await User.create({ email, displayName, role, passwordHash: null }, { transaction });
+      // A person new to Ratebook is a member; one invited to teach may also create courses.
+      const accountRole: Role = role === "instructor" ? "course-creator" : "member";
+      user = await User.create({ email, displayName, role: accountRole, passwordHash: null }, { transaction });
       await recordAudit({ actorId: actor.id, action: "user.invited", entityType: "user", entityId: user.id, after: { email, role: user.role } }, transaction);
     }
     const existing = await CourseMembership.findOne({ where: { courseId, userId: user.id }, transaction });
@@ -134,12 +135,12 @@ export function resetPassword(rawToken: string, input: { password: unknown; conf
   });
 }
 
-const ROLE_RANK: Record<Role, number> = { student: 0, demonstrator: 1, instructor: 2, admin: 3 };
+const ROLE_RANK: Record<Role, number> = { member: 0, "course-creator": 1, admin: 2 };
 
 /** Admin only: changes a person's Ratebook-wide role. */
 export async function changeUserRole(actor: User, userId: number, rawRole: unknown): Promise<Outcome> {
   const role = String(rawRole ?? "") as Role;
-  if (!ROLES.includes(role)) return { ok: false, errors: { role: `Choose one of: ${ROLES.join(", ")}.` } };
+  if (!ROLES.includes(role)) return { ok: false, errors: { role: `Choose one of: ${ROLES.map((r) => ROLE_LABELS[r]).join(", ")}.` } };
   if (actor.id === userId && role !== "admin") return { ok: false, errors: { role: "You cannot remove your own admin role; ask another admin." } };
   return sequelize.transaction(async (transaction) => {
     const user = await User.findByPk(userId, { transaction, lock: true });

@@ -19,3 +19,15 @@ export function PageTitle({ children, sub }: { children: ReactNode; sub?: ReactN
     </div>
   );
 }
+
+/**
+ * A wide table's own scrolling box, so the page itself never scrolls sideways on a phone.
+ * Focusable and labelled, so keyboard users can scroll it too.
+ */
+export function TableBox({ label, children }: { label: string; children: ReactNode }) {
+  return (
+    <div role="region" aria-label={label} tabIndex={0} className="max-w-full overflow-x-auto rounded border border-rule bg-white">
+      {children}
+    </div>
+  );
+}

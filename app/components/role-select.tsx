@@ -12,9 +12,11 @@ interface Props {
   roles: readonly string[];
   /** hidden fields that tell the action what to change */
   fields: Record<string, string | number>;
+  /** text shown for each role, when it differs from the value */
+  labels?: Record<string, string>;
 }
 
-export function RoleSelect({ id, label, role, roles, fields }: Props) {
+export function RoleSelect({ id, label, role, roles, fields, labels }: Props) {
   // Both role actions answer { errors: { role?, form? } }.
   const fetcher = useFetcher<{ errors?: Partial<Record<string, string>> }>();
   const error = fetcher.data?.errors?.role ?? fetcher.data?.errors?.form;
@@ -39,9 +41,12 @@ export function RoleSelect({ id, label, role, roles, fields }: Props) {
           fetcher.submit(e.currentTarget.form);
         }}
       >
-        {roles.map((r) => <option key={r} value={r}>{r}</option>)}
+        {roles.map((r) => <option key={r} value={r}>{labels?.[r] ?? r}</option>)}
       </select>
       {fetcher.state !== "idle" ? <span className="text-sm text-ink-soft">saving…</span> : null}
+      {fetcher.state === "idle" && fetcher.data && !error ? (
+        <span role="status" className="text-sm text-good"><span aria-hidden="true">✓ </span>Saved: now {labels?.[value] ?? value}</span>
+      ) : null}
       {error && fetcher.state === "idle" ? (
         <p id={`${id}-error`} role="alert" className="basis-full text-sm font-bold text-bad">✕ {error}</p>
       ) : null}

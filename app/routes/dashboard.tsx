@@ -1,8 +1,8 @@
 import { Link } from "react-router";
 import type { Route } from "./+types/dashboard";
 import { requireUser } from "~/.server/guards.server";
-import { coursesFor } from "~/.server/courses.server";
-import { PageTitle } from "~/components/page";
+import { coursesFor, type CourseSummary } from "~/.server/courses.server";
+import { PageTitle, TableBox } from "~/components/page";
 
 export const meta: Route.MetaFunction = () => [{ title: "Dashboard · Ratebook" }];
 
@@ -12,59 +12,71 @@ export async function loader({ request }: Route.LoaderArgs) {
 }
 
 const INTRO: Record<string, string> = {
-  admin: "You can see every course, manage people and roles, read the mail Ratebook sent, and check the audit log.",
-  instructor: "Your courses. Open one to manage who takes part; practicals, marking and the gradebook build on these.",
-  demonstrator: "The courses you help run.",
-  student: "The courses you take part in. Your instructor sets up each practical.",
+  admin: "You can see every course, manage people and account types, read the mail Ratebook sent, and check the audit log.",
+  "course-creator": "Your courses. Open one to manage who takes part; practicals, marking and the gradebook build on these.",
+  member: "The courses you take part in. What you can do in each follows your role there.",
 };
+
+function CourseTable({ courses, label }: { courses: CourseSummary[]; label: string }) {
+  return (
+    <TableBox label={label}>
+      <table className="w-full border-collapse text-left">
+        <thead>
+          <tr className="border-b-2 border-ink">
+            <th className="px-3 py-2">Code</th>
+            <th className="px-3 py-2">Title</th>
+            <th className="px-3 py-2">Term</th>
+            <th className="px-3 py-2">Your role</th>
+            <th className="num px-3 py-2">Instructors</th>
+            <th className="num px-3 py-2">Demonstrators</th>
+            <th className="num px-3 py-2">Students</th>
+          </tr>
+        </thead>
+        <tbody>
+          {courses.map((c) => (
+            <tr key={c.id} className="border-b border-rule">
+              <td className="px-3 py-2 whitespace-nowrap"><Link className="font-bold text-accent underline" to={`/courses/${c.id}`}>{c.code}</Link></td>
+              <td className="px-3 py-2">{c.title}</td>
+              <td className="px-3 py-2">{c.term}</td>
+              <td className="px-3 py-2">{c.myRole ?? <span className="text-ink-soft">not a member</span>}</td>
+              <td className="num px-3 py-2">{c.memberCounts.instructor}</td>
+              <td className="num px-3 py-2">{c.memberCounts.demonstrator}</td>
+              <td className="num px-3 py-2">{c.memberCounts.student}</td>
+            </tr>
+          ))}
+        </tbody>
+      </table>
+    </TableBox>
+  );
+}
 
 export default function Dashboard({ loaderData }: Route.ComponentProps) {
   const { role, name, courses } = loaderData;
+  const current = courses.filter((c) => !c.archived);
+  const archived = courses.filter((c) => c.archived);
+  const mayCreate = role === "course-creator" || role === "admin";
   return (
     <>
       <PageTitle sub={INTRO[role]}>Hello, {name}</PageTitle>
       <section aria-labelledby="courses-h">
-        <div className="mb-3 flex items-baseline gap-4">
+        <div className="mb-3 flex flex-wrap items-baseline gap-x-4">
           <h2 id="courses-h" className="text-xl font-bold">Courses</h2>
-          {role === "instructor" || role === "admin" ? (
-            <Link to="/courses/new" className="text-accent underline">Create a course</Link>
-          ) : null}
+          {mayCreate ? <Link to="/courses/new" className="text-accent underline">Create a course</Link> : null}
         </div>
-        {courses.length === 0 ? (
+        {current.length === 0 ? (
           <p className="rounded border border-dashed border-rule p-6 text-ink-soft">
-            {role === "student" || role === "demonstrator"
-              ? "You are not in any course yet. Your instructor adds you by e-mail."
-              : "No courses yet. Create the first one to invite demonstrators and students."}
+            {mayCreate ? "No courses yet. Create the first one to invite demonstrators and students." : "You are not in any course yet. Your instructor adds you by e-mail."}
           </p>
         ) : (
-          <table className="w-full border-collapse bg-white text-left">
-            <thead>
-              <tr className="border-b-2 border-ink">
-                <th className="px-3 py-2">Code</th>
-                <th className="px-3 py-2">Title</th>
-                <th className="px-3 py-2">Term</th>
-                <th className="px-3 py-2">Your role</th>
-                <th className="num px-3 py-2">Instructors</th>
-                <th className="num px-3 py-2">Demonstrators</th>
-                <th className="num px-3 py-2">Students</th>
-              </tr>
-            </thead>
-            <tbody>
-              {courses.map((c) => (
-                <tr key={c.id} className="border-b border-rule">
-                  <td className="px-3 py-2"><Link className="font-bold text-accent underline" to={`/courses/${c.id}`}>{c.code}</Link></td>
-                  <td className="px-3 py-2">{c.title}</td>
-                  <td className="px-3 py-2">{c.term}</td>
-                  <td className="px-3 py-2">{c.myRole}</td>
-                  <td className="num px-3 py-2">{c.memberCounts.instructor}</td>
-                  <td className="num px-3 py-2">{c.memberCounts.demonstrator}</td>
-                  <td className="num px-3 py-2">{c.memberCounts.student}</td>
-                </tr>
-              ))}
-            </tbody>
-          </table>
+          <CourseTable courses={current} label="Courses" />
         )}
       </section>
+      {archived.length ? (
+        <section aria-labelledby="archived-h" className="mt-8">
+          <h2 id="archived-h" className="mb-3 text-xl font-bold">Archived courses</h2>
+          <CourseTable courses={archived} label="Archived courses" />
+        </section>
+      ) : null}
     </>
   );
 }

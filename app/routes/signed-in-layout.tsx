@@ -1,13 +1,17 @@
 import { Form, NavLink, Outlet, useRouteLoaderData } from "react-router";
 import type { ReactNode } from "react";
 import type { Route } from "./+types/signed-in-layout";
-import { requireUser } from "~/.server/guards.server";
+import { isCourseStaffSomewhere, requireUser } from "~/.server/guards.server";
+import { ROLE_LABELS } from "~/.server/db/models.server";
 import { navFor } from "~/lib/navigation";
 import { ErrorPanel } from "~/components/error-panel";
 
 export async function loader({ request }: Route.LoaderArgs) {
   const user = await requireUser(request);
-  return { user: { displayName: user.displayName, email: user.email, role: user.role }, nav: navFor(user.role) };
+  return {
+    user: { displayName: user.displayName, email: user.email, role: user.role, roleLabel: ROLE_LABELS[user.role] },
+    nav: navFor(user.role, await isCourseStaffSomewhere(user)),
+  };
 }
 
 type LayoutData = Awaited<ReturnType<typeof loader>>;
@@ -36,7 +40,7 @@ function Shell({ data, children }: { data: LayoutData; children: ReactNode }) {
           <div className="ml-auto flex items-center gap-3 text-sm">
             <span>
               <NavLink to="/account" className="font-bold underline-offset-4 hover:underline" title="Your account">{user.displayName}</NavLink>{" "}
-              <span className="rounded border border-ink-soft px-2 py-0.5 text-ink-soft">{user.role}</span>
+              <span className="rounded border border-ink-soft px-2 py-0.5 text-ink-soft" title="Account type">{user.roleLabel}</span>
             </span>
             <Form method="post" action="/sign-out">
               <button type="submit" className="rounded border border-ink-soft px-3 py-1 hover:bg-accent-soft">Sign out</button>

@@ -5,17 +5,22 @@ import { hashPassword } from "../../app/.server/passwords.server";
 import { recordAudit } from "../../app/.server/audit.server";
 
 export interface DemoSignIn {
-  role: Role;
+  /** which demo person this is (named by what they do in the demo course) */
+  role: "admin" | "instructor" | "demonstrator" | "student";
+  /** account-level role */
+  accountRole: Role;
+  /** role in the demo course (the admin is not a member) */
+  courseRole: CourseRole | null;
   email: string;
   password: string;
   name: string;
 }
 
 export const DEMO_SIGN_INS: DemoSignIn[] = [
-  { role: "admin", email: "admin@demo.ratebook.invalid", password: "demo-admin-pass", name: "Morgan Reyes (demo admin)" },
-  { role: "instructor", email: "instructor@demo.ratebook.invalid", password: "demo-instructor-pass", name: "Dr Rowan Vale (demo instructor)" },
-  { role: "demonstrator", email: "demonstrator@demo.ratebook.invalid", password: "demo-demonstrator-pass", name: "Kit Okafor (demo demonstrator)" },
-  { role: "student", email: "student@demo.ratebook.invalid", password: "demo-student-pass", name: "Sam Lindqvist (demo student)" },
+  { role: "admin", accountRole: "admin", courseRole: null, email: "admin@demo.ratebook.invalid", password: "demo-admin-pass", name: "Morgan Reyes (demo admin)" },
+  { role: "instructor", accountRole: "course-creator", courseRole: "instructor", email: "instructor@demo.ratebook.invalid", password: "demo-instructor-pass", name: "Dr Rowan Vale (demo instructor)" },
+  { role: "demonstrator", accountRole: "member", courseRole: "demonstrator", email: "demonstrator@demo.ratebook.invalid", password: "demo-demonstrator-pass", name: "Kit Okafor (demo demonstrator)" },
+  { role: "student", accountRole: "member", courseRole: "student", email: "student@demo.ratebook.invalid", password: "demo-student-pass", name: "Sam Lindqvist (demo student)" },
 ];
 
 const DEMO_COURSE = { code: "KIN-DEMO", title: "Reaction kinetics practicals (invented demo course)", term: "Demo term" };
@@ -23,14 +28,14 @@ const EXTRA_STUDENTS = ["Ari Novak", "Bea Tanaka", "Cam Osei", "Dee Laurent", "E
 
 export async function seedDemo(): Promise<DemoSignIn[]> {
   await sequelize.transaction(async (transaction) => {
-    const [course, courseCreated] = await Course.findOrCreate({ where: { code: DEMO_COURSE.code }, defaults: DEMO_COURSE, transaction });
+    const [course, courseCreated] = await Course.findOrCreate({ where: { code: DEMO_COURSE.code, term: DEMO_COURSE.term }, defaults: DEMO_COURSE, transaction });
     if (courseCreated) await recordAudit({ actorId: null, action: "course.created", entityType: "course", entityId: course.id, after: DEMO_COURSE }, transaction);
     const people: Array<{ email: string; name: string; role: Role; password: string | null; courseRole: CourseRole | null }> = [
-      ...DEMO_SIGN_INS.map((d) => ({ email: d.email, name: d.name, role: d.role, password: d.password, courseRole: d.role === "admin" ? null : (d.role as CourseRole) })),
+      ...DEMO_SIGN_INS.map((d) => ({ email: d.email, name: d.name, role: d.accountRole, password: d.password, courseRole: d.courseRole })),
       ...EXTRA_STUDENTS.map((n, i) => ({
         email: `student${i + 2}@demo.ratebook.invalid`,
         name: `${n} (demo student)`,
-        role: "student" as Role,
+        role: "member" as Role,
         password: "demo-student-pass",
         courseRole: "student" as CourseRole,
       })),

@@ -86,7 +86,7 @@ export async function makeFixtures(): Promise<Record<string, string>> {
   const [other] = await Course.findOrCreate({ where: { code: "ACCESS-OTHER", term: "Access test" }, defaults: { code: "ACCESS-OTHER", title: "Another course (test)", term: "Access test" } });
   const { email, password } = SIGN_INS.otherStudent;
   let student = await User.findOne({ where: { email } });
-  student ??= await User.create({ email, displayName: "Other-course student (test)", role: "student", passwordHash: await hashPassword(password) });
+  student ??= await User.create({ email, displayName: "Other-course student (test)", role: "member", passwordHash: await hashPassword(password) });
   await CourseMembership.findOrCreate({ where: { courseId: other.id, userId: student.id }, defaults: { courseId: other.id, userId: student.id, role: "student" } });
   return { course: String(course!.id), otherCourse: String(other.id), badToken: "not-a-real-token" };
 }

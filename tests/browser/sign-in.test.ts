@@ -45,7 +45,7 @@ describe("browser", () => {
     await page.waitForURL(`${server.url}/dashboard`);
     await expect.poll(() => page.getByRole("heading", { level: 1 }).textContent()).toBe("Hello, Dr Rowan Vale (demo instructor)");
     expect(await page.getByRole("link", { name: "KIN-DEMO" }).count()).toBe(1);
-    expect(await page.locator("header").textContent()).toContain("instructor");
+    expect(await page.locator("header").textContent()).toContain("course creator");
     expect(await page.getByRole("navigation", { name: "Main" }).textContent()).toContain("New course");
     // The font ships with the app: it is loaded, and no request left the app's own host.
     const fontLoaded = await page.evaluate(async () => {

@@ -10,7 +10,7 @@ import { KEEP_ATTEMPTS_MS, recordAttempt } from "~/.server/throttle.server";
 import { call, linkToken, payloadOf, request, signInAs, statusOf, waitForMail } from "./helpers";
 
 async function makeUser(email: string, password: string) {
-  return User.create({ email, displayName: "Account test (test)", role: "demonstrator", passwordHash: await hashPassword(password) });
+  return User.create({ email, displayName: "Account test (test)", role: "member", passwordHash: await hashPassword(password) });
 }
 
 describe("own password", () => {
@@ -18,7 +18,7 @@ describe("own password", () => {
     const email = "account-owner@demo.ratebook.invalid";
     const user = await makeUser(email, "first-password-1");
     const cookie = await signInAs(email, "first-password-1");
-    expect(payloadOf(await call(accountLoader, request("/account", { cookie })))).toMatchObject({ email, role: "demonstrator" });
+    expect(payloadOf(await call(accountLoader, request("/account", { cookie })))).toMatchObject({ email, role: "member" });
 
     const wrong = await call(accountAction, request("/account", { cookie, form: { current: "nope-nope-nope", password: "second-password-2", confirm: "second-password-2" } }));
     expect(statusOf(wrong)).toBe(400);

@@ -23,11 +23,11 @@ describe("audit log", () => {
   test("an admin role change is audited; a refused change is not", async () => {
     const admin = (await User.findOne({ where: { email: "admin@demo.ratebook.invalid" } }))!;
     const target = (await User.findOne({ where: { email: "student4@demo.ratebook.invalid" } }))!;
-    expect((await changeUserRole(admin, target.id, "demonstrator")).ok).toBe(true);
+    expect((await changeUserRole(admin, target.id, "course-creator")).ok).toBe(true);
     expect(await AuditEntry.count({ where: { action: "user.role-changed", entityId: String(target.id) } })).toBe(1);
     const refused = await changeUserRole(admin, target.id, "emperor");
     expect(refused.ok).toBe(false);
-    const self = await changeUserRole(admin, admin.id, "student");
+    const self = await changeUserRole(admin, admin.id, "member");
     expect(self).toMatchObject({ ok: false, errors: { role: expect.stringMatching(/own admin role/) } });
     expect(await AuditEntry.count({ where: { action: "user.role-changed", entityId: String(admin.id) } })).toBe(0);
   });

@@ -55,7 +55,7 @@ describe("planning schema", () => {
   });
 
   test("a student is in one group of a course, and a group has one bench a session", async () => {
-    const student = await User.create({ email: "schema-student@demo.ratebook.invalid", displayName: "Schema student (invented)", role: "student", passwordHash: null });
+    const student = await User.create({ email: "schema-student@demo.ratebook.invalid", displayName: "Schema student (invented)", role: "member", passwordHash: null });
     const [g1, g2] = await Promise.all([Group.create({ courseId: course.id, name: "G1" }), Group.create({ courseId: course.id, name: "G2" })]);
     await GroupMember.create({ groupId: g1.id, courseId: course.id, userId: student.id });
     await expect(GroupMember.create({ groupId: g2.id, courseId: course.id, userId: student.id })).rejects.toThrow();

@@ -13,7 +13,7 @@ import { hashPassword } from "~/.server/passwords.server";
 import { removeAccount } from "~/.server/people.server";
 import { call, demoCookie, linkToken, payloadOf, request, signInAs, statusOf, waitForMail } from "./helpers";
 
-async function makeUser(email: string, password: string, role: User["role"] = "demonstrator") {
+async function makeUser(email: string, password: string, role: User["role"] = "member") {
   return User.create({ email, displayName: "Session test (test)", role, passwordHash: await hashPassword(password) });
 }
 
@@ -74,12 +74,12 @@ describe("server-side sessions", () => {
 
   test("taking an account role away signs the person out; a promotion does not", async () => {
     const email = "session-role@demo.ratebook.invalid";
-    const user = await makeUser(email, "session-pass-5", "demonstrator");
+    const user = await makeUser(email, "session-pass-5", "course-creator");
     const cookie = await signInAs(email, "session-pass-5");
     const admin = await demoCookie("admin");
-    await call(peopleAction, request("/admin/people", { cookie: admin, form: { userId: String(user.id), role: "instructor" } }));
+    await call(peopleAction, request("/admin/people", { cookie: admin, form: { userId: String(user.id), role: "admin" } }));
     expect(await signedIn(cookie)).toBe(true);
-    await call(peopleAction, request("/admin/people", { cookie: admin, form: { userId: String(user.id), role: "student" } }));
+    await call(peopleAction, request("/admin/people", { cookie: admin, form: { userId: String(user.id), role: "member" } }));
     expect(await signedIn(cookie)).toBe(false);
   });
 

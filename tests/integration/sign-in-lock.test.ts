@@ -11,7 +11,7 @@ import { call, linkToken, payloadOf, request, waitForMail } from "./helpers";
 describe("sign-in lock and password reset", () => {
   test("a completed reset lifts the lock for that address", async () => {
     const email = "locked-then-reset@demo.ratebook.invalid";
-    await User.create({ email, displayName: "Lock test (test)", role: "student", passwordHash: await hashPassword("old-password-1") });
+    await User.create({ email, displayName: "Lock test (test)", role: "member", passwordHash: await hashPassword("old-password-1") });
     for (let i = 0; i < THROTTLE.maxFailuresPerEmail; i++) {
       await call(signInAction, request("/sign-in", { form: { email, password: `wrong-${i}-xxxxx` } }));
     }

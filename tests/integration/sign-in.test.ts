@@ -50,7 +50,7 @@ describe("sign-in", () => {
 
   test("repeated failures for one e-mail are refused for a while, even with the right password", async () => {
     const email = "throttle-target@demo.ratebook.invalid";
-    await User.create({ email, displayName: "Throttle target (test)", role: "student", passwordHash: await hashPassword("right-password-1") });
+    await User.create({ email, displayName: "Throttle target (test)", role: "member", passwordHash: await hashPassword("right-password-1") });
     for (let i = 0; i < THROTTLE.maxFailuresPerEmail; i++) {
       expect(payloadOf(await call(signIn, form(email, `wrong-${i}`))).error).toBe(GENERIC_FAILURE);
     }

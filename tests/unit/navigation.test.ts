@@ -2,12 +2,12 @@ import { describe, expect, test } from "vitest";
 import { navFor } from "~/lib/navigation";
 
 describe("navigation per role", () => {
-  test("students see only their dashboard; demonstrators may also check a data set", () => {
-    expect(navFor("student").map((i) => i.to)).toEqual(["/dashboard"]);
-    expect(navFor("demonstrator").map((i) => i.to)).toEqual(["/dashboard", "/fit-check"]);
+  test("a member sees the data-set check only when they are course staff somewhere", () => {
+    expect(navFor("member", false).map((i) => i.to)).toEqual(["/dashboard"]);
+    expect(navFor("member", true).map((i) => i.to)).toEqual(["/dashboard", "/fit-check"]);
   });
-  test("instructors may create courses; admins also manage people, mail and the audit log", () => {
-    expect(navFor("instructor").map((i) => i.to)).toEqual(["/dashboard", "/courses/new", "/fit-check"]);
-    expect(navFor("admin").map((i) => i.to)).toEqual(["/dashboard", "/courses/new", "/fit-check", "/admin/people", "/admin/mail", "/admin/audit"]);
+  test("course creators may create courses; admins also manage people, mail and the audit log", () => {
+    expect(navFor("course-creator", false).map((i) => i.to)).toEqual(["/dashboard", "/courses/new", "/fit-check"]);
+    expect(navFor("admin", false).map((i) => i.to)).toEqual(["/dashboard", "/courses/new", "/fit-check", "/admin/people", "/admin/mail", "/admin/audit"]);
   });
 });

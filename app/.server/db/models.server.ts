@@ -10,8 +10,13 @@ import {
 } from "sequelize";
 import { getSequelize } from "./sequelize.server";
 
-export const ROLES = ["admin", "instructor", "demonstrator", "student"] as const;
+/**
+ * Account-level roles. They say what a person may do outside any course; inside a course, the
+ * course role (COURSE_ROLES) decides. Named so they do not read as course roles.
+ */
+export const ROLES = ["admin", "course-creator", "member"] as const;
 export type Role = (typeof ROLES)[number];
+export const ROLE_LABELS: Record<Role, string> = { admin: "administrator", "course-creator": "course creator", member: "member" };
 export const COURSE_ROLES = ["instructor", "demonstrator", "student"] as const;
 export type CourseRole = (typeof COURSE_ROLES)[number];
 export const TOKEN_PURPOSES = ["invitation", "password-reset"] as const;
@@ -32,6 +37,7 @@ export class Course extends Model<InferAttributes<Course>, InferCreationAttribut
   declare code: string;
   declare title: string;
   declare term: string;
+  declare archivedAt: CreationOptional<Date | null>;
   declare createdAt: CreationOptional<Date>;
   declare updatedAt: CreationOptional<Date>;
 }
@@ -103,9 +109,10 @@ User.init(
 Course.init(
   {
     id: { type: DataTypes.INTEGER, autoIncrement: true, primaryKey: true },
-    code: { type: DataTypes.STRING(40), allowNull: false, unique: true },
+    code: { type: DataTypes.STRING(40), allowNull: false },
     title: { type: DataTypes.STRING(200), allowNull: false },
     term: { type: DataTypes.STRING(60), allowNull: false, defaultValue: "" },
+    archivedAt: { type: DataTypes.DATE, allowNull: true },
     createdAt: DataTypes.DATE,
     updatedAt: DataTypes.DATE,
   },

@@ -51,7 +51,7 @@ export const corePart: ApiPart = {
             id: { type: "integer" },
             displayName: { type: "string" },
             email: { type: "string" },
-            role: { type: "string", enum: ["admin", "instructor", "demonstrator", "student"] },
+            role: { type: "string", enum: ["admin", "course-creator", "member"], description: "account type; what a person may do in a course follows their course role" },
           },
         },
         courses: { type: "array", items: ref("CourseRef") },

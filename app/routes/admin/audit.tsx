@@ -1,7 +1,8 @@
 import type { Route } from "./+types/audit";
 import { requireUser } from "~/.server/guards.server";
 import { AuditEntry, User } from "~/.server/db/models.server";
-import { PageTitle } from "~/components/page";
+import { PageTitle, TableBox } from "~/components/page";
+import { auditChanges } from "~/lib/audit-text";
 
 export const meta: Route.MetaFunction = () => [{ title: "Audit log · Ratebook" }];
 const PAGE = 200;
@@ -20,8 +21,7 @@ export async function loader({ request }: Route.LoaderArgs) {
       actor: r.actor ? `${r.actor.displayName} <${r.actor.email}>` : "system",
       action: r.action,
       entity: `${r.entityType}${r.entityId ? ` #${r.entityId}` : ""}`,
-      before: r.before == null ? "" : JSON.stringify(r.before),
-      after: r.after == null ? "" : JSON.stringify(r.after),
+      changes: auditChanges(r.before, r.after),
     })),
   };
 }
@@ -30,26 +30,29 @@ export default function AdminAudit({ loaderData }: Route.ComponentProps) {
   return (
     <>
       <PageTitle sub={`Who changed what, and when: the latest ${PAGE} entries, newest first (times in UTC).`}>Audit log</PageTitle>
-      <table className="w-full border-collapse bg-white text-left text-sm">
-        <thead>
-          <tr className="border-b-2 border-ink">
-            <th className="px-2 py-2">When</th><th className="px-2 py-2">Who</th><th className="px-2 py-2">What</th>
-            <th className="px-2 py-2">Record</th><th className="px-2 py-2">Before</th><th className="px-2 py-2">After</th>
-          </tr>
-        </thead>
-        <tbody>
-          {loaderData.rows.map((r) => (
-            <tr key={r.id} className="border-b border-rule align-top">
-              <td className="px-2 py-1 whitespace-nowrap tabular-nums">{r.at}</td>
-              <td className="px-2 py-1">{r.actor}</td>
-              <td className="px-2 py-1">{r.action}</td>
-              <td className="px-2 py-1">{r.entity}</td>
-              <td className="px-2 py-1 font-mono break-all">{r.before}</td>
-              <td className="px-2 py-1 font-mono break-all">{r.after}</td>
+      <TableBox label="Audit log">
+        <table className="w-full border-collapse text-left text-sm">
+          <thead>
+            <tr className="border-b-2 border-ink">
+              <th className="px-2 py-2">When</th><th className="px-2 py-2">Who</th><th className="px-2 py-2">What</th>
+              <th className="px-2 py-2">Record</th><th className="px-2 py-2">Change</th>
             </tr>
-          ))}
-        </tbody>
-      </table>
+          </thead>
+          <tbody>
+            {loaderData.rows.map((r) => (
+              <tr key={r.id} className="border-b border-rule align-top">
+                <td className="px-2 py-1 whitespace-nowrap tabular-nums">{r.at}</td>
+                <td className="px-2 py-1">{r.actor}</td>
+                <td className="px-2 py-1 whitespace-nowrap">{r.action}</td>
+                <td className="px-2 py-1 whitespace-nowrap">{r.entity}</td>
+                <td className="px-2 py-1">
+                  {r.changes.length ? <ul>{r.changes.map((c, i) => <li key={i}>{c}</li>)}</ul> : <span className="text-ink-soft">—</span>}
+                </td>
+              </tr>
+            ))}
+          </tbody>
+        </table>
+      </TableBox>
     </>
   );
 }

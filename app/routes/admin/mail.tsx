@@ -16,6 +16,15 @@ export async function loader({ request }: Route.LoaderArgs) {
   }
 }
 
+const URL_PATTERN = /(https?:\/\/[^\s<>"]+)/g;
+
+/** Addresses in a message become links, so a demo invitation or reset can be followed from here. */
+function withLinks(text: string) {
+  return text.split(URL_PATTERN).map((part, i) =>
+    i % 2 === 1 ? <a key={i} href={part} className="break-all text-accent underline">{part}</a> : part,
+  );
+}
+
 export default function AdminMail({ loaderData }: Route.ComponentProps) {
   const { configured, messages, problem } = loaderData;
   return (
@@ -29,7 +38,7 @@ export default function AdminMail({ loaderData }: Route.ComponentProps) {
           <li key={m.id} className="rounded border border-rule bg-white p-4">
             <p className="text-sm text-ink-soft">{new Date(m.receivedAt).toISOString().replace("T", " ").slice(0, 19)} UTC · to {m.to.join(", ")}</p>
             <h2 className="mt-1 text-lg font-bold">{m.subject}</h2>
-            <pre className="mt-2 font-sans whitespace-pre-wrap break-words">{m.text}</pre>
+            <pre className="mt-2 font-sans whitespace-pre-wrap break-words">{withLinks(m.text)}</pre>
           </li>
         ))}
       </ol>

@@ -1,5 +1,5 @@
 import type { Route } from "./+types/fit";
-import { requireUser } from "~/.server/guards.server";
+import { requireCourseStaff } from "~/.server/guards.server";
 import { runRequest, validateRequest } from "~/lib/kinetics";
 import { readJson } from "~/.server/body.server";
 
@@ -9,7 +9,7 @@ import { readJson } from "~/.server/body.server";
  * 200 with the fit result, 400 with { errors: [{ path, message }] } listing every problem.
  */
 export async function action({ request }: Route.ActionArgs) {
-  await requireUser(request, { roles: ["admin", "instructor", "demonstrator"], api: true });
+  await requireCourseStaff(request, { api: true });
   if (request.method !== "POST") return Response.json({ errors: [{ path: "", message: "Use POST with a JSON body." }] }, { status: 405 });
   // Counted while it streams in: 413 as soon as the body passes the JSON limit, chunked or not.
   const body = await readJson(request);

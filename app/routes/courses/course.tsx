@@ -1,14 +1,14 @@
 import { data, Form, useNavigation } from "react-router";
 import type { Route } from "./+types/course";
-import { requireCourseRole, requireUser } from "~/.server/guards.server";
-import { courseMembers } from "~/.server/courses.server";
+import { ownCourseRole, requireCourseRole, requireUser } from "~/.server/guards.server";
+import { courseMembers, removeMember, setCourseArchived } from "~/.server/courses.server";
 import { changeMembershipRole, inviteToCourse, type FieldErrors } from "~/.server/people.server";
 import { Course, COURSE_ROLES } from "~/.server/db/models.server";
-import { Button, Field, FormMessage, SelectField } from "~/components/form";
-import { PageTitle } from "~/components/page";
-import { RoleSelect } from "~/components/role-select";
 import { readForm } from "~/.server/body.server";
 import { formId, pathId } from "~/.server/ids.server";
+import { Button, Field, FormMessage, SelectField } from "~/components/form";
+import { PageTitle, TableBox } from "~/components/page";
+import { RoleSelect } from "~/components/role-select";
 
 export const meta: Route.MetaFunction = ({ data }) => [{ title: `${data?.course.code ?? "Course"} · Ratebook` }];
 
@@ -23,10 +23,13 @@ async function loadCourse(courseId: string) {
 export async function loader({ request, params }: Route.LoaderArgs) {
   const user = await requireUser(request);
   const course = await loadCourse(params.courseId);
-  const myRole = await requireCourseRole(user, course.id, COURSE_ROLES);
-  const staffView = myRole !== "student";
+  // What the caller may do follows their course role (an admin acts as an instructor) ...
+  const actingRole = await requireCourseRole(user, course.id, COURSE_ROLES);
+  // ... but the page says what their own role is, which an admin who is not a member has not.
+  const myRole = await ownCourseRole(user, course.id);
+  const staffView = actingRole !== "student";
   const members = (await courseMembers(course.id))
-    .filter((m) => staffView || m.role !== "student" || m.userId === user.id)
+    .filter((m) => staffView || m.role !== "student")
     .map((m) => ({
       id: m.id,
       role: m.role,
@@ -35,10 +38,17 @@ export async function loader({ request, params }: Route.LoaderArgs) {
       pending: !m.user!.passwordHash,
       isMe: m.userId === user.id,
     }));
-  return { course: { id: course.id, code: course.code, title: course.title, term: course.term }, myRole, members, roles: COURSE_ROLES };
+  return {
+    course: { id: course.id, code: course.code, title: course.title, term: course.term, archived: course.archivedAt !== null },
+    myRole,
+    canManage: actingRole === "instructor",
+    staffView,
+    members,
+    roles: COURSE_ROLES,
+  };
 }
 
-type ActionResult = { intent: string; errors: FieldErrors; values: Record<string, string>; notice: string | null };
+type ActionResult = { intent: string; errors: FieldErrors; values: Record<string, string>; notice: string | null; at?: number };
 
 export async function action({ request, params }: Route.ActionArgs) {
   const user = await requireUser(request);
@@ -47,71 +57,123 @@ export async function action({ request, params }: Route.ActionArgs) {
   const form = await readForm(request);
   const intent = String(form.get("intent") ?? "");
   const reply = (r: Omit<ActionResult, "intent">, status = 200) => data<ActionResult>({ intent, ...r }, { status });
+  const refuse = (message: string, status = 400) => reply({ errors: { form: message }, values: {}, notice: null }, status);
+  if (intent === "unarchive" || intent === "archive") {
+    const result = await setCourseArchived(user, course.id, intent === "archive");
+    if (!result.ok) return reply({ errors: result.errors, values: {}, notice: null }, 400);
+    return reply({ errors: {}, values: {}, notice: intent === "archive" ? "The course is archived: it is read-only until you take it out of the archive." : "The course is out of the archive." });
+  }
+  if (course.archivedAt) return refuse("This course is archived; take it out of the archive before changing it.");
   if (intent === "invite") {
     const result = await inviteToCourse(user, course.id, { email: form.get("email"), displayName: form.get("displayName"), role: form.get("role") });
     if (!result.ok) return reply({ errors: result.errors, values: Object.fromEntries(form) as Record<string, string>, notice: null }, 400);
     const notice = result.value.invited ? `Invitation sent to ${form.get("email")}.` : `${form.get("email")} already has an account and is now in this course.`;
-    return reply({ errors: {}, values: {}, notice });
+    // `at` gives the invitation form a new key, so it comes back empty.
+    return reply({ errors: {}, values: {}, notice, at: Date.now() });
   }
-  if (intent === "change-role") {
+  if (intent === "change-role" || intent === "remove-member") {
     const membershipId = formId(form, "membershipId");
-    if (membershipId === null) return reply({ errors: { form: "That row does not name a person in this course; reload the page." }, values: {}, notice: null }, 400);
+    if (membershipId === null) return refuse("That row does not name a person in this course; reload the page.");
+    if (intent === "remove-member") {
+      const result = await removeMember(user, course.id, membershipId);
+      if (!result.ok) return reply({ errors: result.errors, values: {}, notice: null }, 400);
+      return reply({ errors: {}, values: {}, notice: `${result.value.name} is no longer in this course.` });
+    }
     const result = await changeMembershipRole(user, course.id, membershipId, form.get("role"));
     if (!result.ok) return reply({ errors: result.errors, values: {}, notice: null }, 400);
     return reply({ errors: {}, values: {}, notice: "Role changed." });
   }
-  throw data({ message: `Unknown action "${String(intent)}".` }, { status: 400 });
+  return refuse(`Unknown action "${intent}".`);
 }
 
 export default function CoursePage({ loaderData, actionData }: Route.ComponentProps) {
-  const { course, myRole, members, roles } = loaderData;
+  const { course, myRole, canManage, staffView, members, roles } = loaderData;
   const busy = useNavigation().state === "submitting";
   const inviteErrors: FieldErrors = actionData?.intent === "invite" ? actionData.errors : {};
   const values: Record<string, string> = actionData?.intent === "invite" ? actionData.values : {};
-  const isInstructor = myRole === "instructor";
+  const editable = canManage && !course.archived;
+  const roleText = myRole ? `your role: ${myRole}` : "you are not a member (you can manage it as administrator)";
+  const pageNotice = actionData && actionData.intent !== "change-role" ? actionData.notice : null;
+  const pageProblem = actionData && actionData.intent !== "invite" && actionData.intent !== "change-role" ? actionData.errors.form : undefined;
   return (
     <>
-      <PageTitle sub={`${course.title}${course.term ? ` · ${course.term}` : ""} · your role: ${myRole}`}>{course.code}</PageTitle>
-      {actionData?.notice && actionData.intent === "invite" ? <FormMessage tone="info">{actionData.notice}</FormMessage> : null}
+      <PageTitle sub={`${course.title}${course.term ? ` · ${course.term}` : ""} · ${roleText}`}>
+        {course.code}
+        {course.archived ? <span className="ml-3 align-middle rounded border border-ink-soft px-2 py-0.5 text-base font-normal text-ink-soft">archived</span> : null}
+      </PageTitle>
+      {pageNotice ? <FormMessage tone="info">{pageNotice}</FormMessage> : null}
+      {pageProblem ? <FormMessage tone="error">{pageProblem}</FormMessage> : null}
       <div className="grid gap-8 lg:grid-cols-[2fr_1fr]">
-        <section aria-labelledby="members-h">
-          <h2 id="members-h" className="mb-3 text-xl font-bold">{myRole === "student" ? "Staff" : "People"} ({members.length})</h2>
-          <table className="w-full border-collapse bg-white text-left">
-            <thead>
-              <tr className="border-b-2 border-ink">
-                <th className="px-3 py-2">Name</th>
-                {myRole !== "student" ? <th className="px-3 py-2">E-mail</th> : null}
-                <th className="px-3 py-2">Role</th>
-                <th className="px-3 py-2">Account</th>
-              </tr>
-            </thead>
-            <tbody>
-              {members.map((m) => (
-                <tr key={m.id} className="border-b border-rule">
-                  <td className="px-3 py-2">{m.name}{m.isMe ? " (you)" : ""}</td>
-                  {myRole !== "student" ? <td className="px-3 py-2">{m.email}</td> : null}
-                  <td className="px-3 py-2">
-                    {isInstructor ? <RoleSelect id={`role-${m.id}`} label={`Role of ${m.name}`} role={m.role} roles={roles} fields={{ intent: "change-role", membershipId: m.id }} /> : m.role}
-                  </td>
-                  <td className="px-3 py-2">{m.pending ? "◔ invited, not yet joined" : "● active"}</td>
+        <section aria-labelledby="members-h" className="min-w-0">
+          <h2 id="members-h" className="mb-3 text-xl font-bold">{staffView ? "People" : "Staff"} ({members.length})</h2>
+          <TableBox label={staffView ? "People in this course" : "Staff of this course"}>
+            <table className="w-full border-collapse text-left">
+              <thead>
+                <tr className="border-b-2 border-ink">
+                  <th className="px-3 py-2">Name</th>
+                  {staffView ? <th className="px-3 py-2">E-mail</th> : null}
+                  <th className="px-3 py-2">Role</th>
+                  {staffView ? <th className="px-3 py-2">Account</th> : null}
+                  {editable ? <th className="px-3 py-2"><span className="sr-only">Remove</span></th> : null}
                 </tr>
-              ))}
-            </tbody>
-          </table>
+              </thead>
+              <tbody>
+                {members.map((m) => (
+                  <tr key={m.id} className="border-b border-rule align-top">
+                    <td className="px-3 py-2">{m.name}{m.isMe ? " (you)" : ""}</td>
+                    {staffView ? <td className="px-3 py-2 break-all">{m.email}</td> : null}
+                    <td className="px-3 py-2">
+                      {editable ? <RoleSelect id={`role-${m.id}`} label={`Role of ${m.name}`} role={m.role} roles={roles} fields={{ intent: "change-role", membershipId: m.id }} /> : m.role}
+                    </td>
+                    {staffView ? <td className="px-3 py-2 whitespace-nowrap">{m.pending ? "◔ invited, not yet joined" : "● active"}</td> : null}
+                    {editable ? (
+                      <td className="px-3 py-2">
+                        <Form method="post">
+                          <input type="hidden" name="intent" value="remove-member" />
+                          <input type="hidden" name="membershipId" value={m.id} />
+                          <button type="submit" aria-label={`Remove ${m.name} from this course`} className="rounded border border-ink-soft px-2 py-1 text-sm whitespace-nowrap hover:bg-bad-soft">
+                            Remove
+                          </button>
+                        </Form>
+                      </td>
+                    ) : null}
+                  </tr>
+                ))}
+              </tbody>
+            </table>
+          </TableBox>
         </section>
-        {isInstructor ? (
-          <section aria-labelledby="invite-h" className="self-start rounded border border-rule bg-white p-4">
-            <h2 id="invite-h" className="mb-3 text-xl font-bold">Add a person</h2>
-            {inviteErrors.form ? <FormMessage tone="error">{inviteErrors.form}</FormMessage> : null}
-            <Form method="post" noValidate>
-              <input type="hidden" name="intent" value="invite" />
-              <Field label="E-mail" name="email" type="email" defaultValue={values.email} error={inviteErrors.email} />
-              <Field label="Name" name="displayName" defaultValue={values.displayName} error={inviteErrors.displayName} />
-              <SelectField label="Role in this course" name="role" options={roles} defaultValue={values.role ?? "student"} error={inviteErrors.role} />
-              <Button busy={busy}>Add and invite</Button>
-            </Form>
-            <p className="mt-3 text-sm text-ink-soft">People new to Ratebook get an e-mail with a link to choose a password; the link works once, for 7 days.</p>
-          </section>
+        {canManage ? (
+          <div className="min-w-0 space-y-6 self-start">
+            {editable ? (
+              <section aria-labelledby="invite-h" className="rounded border border-rule bg-white p-4">
+                <h2 id="invite-h" className="mb-3 text-xl font-bold">Add a person</h2>
+                {inviteErrors.form ? <FormMessage tone="error">{inviteErrors.form}</FormMessage> : null}
+                <Form method="post" noValidate key={actionData?.intent === "invite" && actionData.at ? actionData.at : "invite"}>
+                  <input type="hidden" name="intent" value="invite" />
+                  <Field label="E-mail" name="email" type="email" defaultValue={values.email} error={inviteErrors.email} />
+                  <Field label="Name" name="displayName" defaultValue={values.displayName} error={inviteErrors.displayName} />
+                  <SelectField label="Role in this course" name="role" options={roles} defaultValue={values.role ?? "student"} error={inviteErrors.role} />
+                  <Button busy={busy}>Add and invite</Button>
+                </Form>
+                <p className="mt-3 text-sm text-ink-soft">People new to Ratebook get an e-mail with a link to choose a password; the link works once, for 7 days.</p>
+              </section>
+            ) : null}
+            <section aria-labelledby="archive-h" className="rounded border border-rule bg-white p-4">
+              <h2 id="archive-h" className="mb-2 text-xl font-bold">{course.archived ? "Archived" : "Archive"}</h2>
+              <p className="mb-3 text-sm text-ink-soft">
+                {course.archived
+                  ? "Nothing in this course can be changed while it is archived. Take it out of the archive to change it again."
+                  : "When the course has ended: it moves to the archived list and becomes read-only. Nothing is deleted."}
+              </p>
+              <Form method="post">
+                <input type="hidden" name="intent" value={course.archived ? "unarchive" : "archive"} />
+                <button type="submit" className="rounded border border-ink-soft px-3 py-1 hover:bg-accent-soft">
+                  {course.archived ? "Take out of the archive" : "Archive this course"}
+                </button>
+              </Form>
+            </section>
+          </div>
         ) : null}
       </div>
     </>

@@ -7,7 +7,7 @@ import { PageTitle } from "~/components/page";
 import { readForm } from "~/.server/body.server";
 
 export const meta: Route.MetaFunction = () => [{ title: "New course · Ratebook" }];
-const STAFF = ["admin", "instructor"] as const;
+const STAFF = ["admin", "course-creator"] as const;
 
 export async function loader({ request }: Route.LoaderArgs) {
   await requireUser(request, { roles: STAFF });

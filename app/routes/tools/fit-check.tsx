@@ -2,7 +2,7 @@
 import { useState } from "react";
 import { useFetcher } from "react-router";
 import type { Route } from "./+types/fit-check";
-import { requireUser } from "~/.server/guards.server";
+import { requireCourseStaff } from "~/.server/guards.server";
 import { buildFitRequest, LAW_ORDERS, MEASURED_KINDS, problemFromEnginePath, type FitFormValues, type FormProblem } from "~/lib/fit-form";
 import { inventedExample } from "~/lib/example-run";
 import type { FitResult } from "~/lib/kinetics";
@@ -13,7 +13,8 @@ import { FitReport } from "~/components/fit-report";
 export const meta: Route.MetaFunction = () => [{ title: "Check a data set · Ratebook" }];
 
 export async function loader({ request }: Route.LoaderArgs) {
-  await requireUser(request, { roles: ["admin", "instructor", "demonstrator"] });
+  // Follows the course role: anyone who is an instructor or demonstrator in some course.
+  await requireCourseStaff(request);
   return null;
 }
 
