@@ -88,9 +88,10 @@ export function summarize(steps: StepResult[], relativeName: (file: string) => s
     skipped += (r.numPendingTests ?? 0) + (r.numTodoTests ?? 0);
     let counted = r.numFailedTests;
     if (r.numFailedTests > 0) reasons.push(`${step.name}: ${r.numFailedTests} test(s) failed`);
-    // A file that fails before its tests run (import error, failed hook) has no assertions to count.
+    // A file that fails outside its tests (import error, failed beforeAll) has no failed test to count.
     for (const f of r.testResults) {
-      if (f.status === "failed" && (f.assertionResults?.length ?? 0) === 0) {
+      const failedInside = (f.assertionResults ?? []).some((a) => (a as { status?: string }).status === "failed");
+      if (f.status === "failed" && !failedInside) {
         failed++;
         counted++;
         const why = (f.message ?? "").split("\n")[0].slice(0, 300);

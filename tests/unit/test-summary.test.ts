@@ -5,7 +5,7 @@ import { describe, expect, it } from "vitest";
 import { firstErrorLine, summarize, summaryLines, type VitestReport } from "../../scripts/lib/test-summary";
 
 const ok = (name: string) => ({ kind: "command" as const, name, status: 0 });
-function report(p: number, f: number, files: VitestReport["testResults"] = [{ name: "a.test.ts", status: f ? "failed" : "passed", assertionResults: [{}] }]): VitestReport {
+function report(p: number, f: number, files: VitestReport["testResults"] = [{ name: "a.test.ts", status: f ? "failed" : "passed", assertionResults: [{ status: f ? "failed" : "passed" }] }]): VitestReport {
   return { numTotalTests: p + f, numPassedTests: p, numFailedTests: f, testResults: files, success: f === 0 };
 }
 
@@ -60,6 +60,14 @@ describe("summarize", () => {
     const s = summarize([{ kind: "vitest", name: "vitest", status: 1, report: report(1, 0, files) }], (f) => f.replace("/x/", ""));
     expect(s.failed).toBe(1);
     expect(s.reasons).toEqual(["vitest: broken.test.ts failed before its tests ran: Cannot find module 'y'"]);
+  });
+
+  it("counts a file whose beforeAll failed, leaving its tests skipped", () => {
+    const files = [{ name: "/x/matrix.test.ts", status: "failed", message: "AssertionError: expected undefined to be 302", assertionResults: [{ status: "skipped" }, { status: "skipped" }] }];
+    const s = summarize([{ kind: "vitest", name: "vitest", status: 1, report: { ...report(0, 0, files), numTotalTests: 2, numPendingTests: 2 } }], (f) => f.replace("/x/", ""));
+    expect(s.failed).toBe(1);
+    expect(s.skipped).toBe(2);
+    expect(s.reasons).toEqual(["vitest: matrix.test.ts failed before its tests ran: AssertionError: expected undefined to be 302"]);
   });
 
   it("repeats the reasons just above the last line", () => {
