@@ -36,6 +36,8 @@ export default [
     route("fit", "routes/api/fit.ts"),
     route("courses", "routes/api/courses.ts"),
     route("openapi.json", "routes/api/openapi.ts"),
+    route("tokens", "routes/api/tokens.ts"),
+    route("tokens/:tokenId", "routes/api/token.ts"),
   ]),
 
   route("*", "routes/not-found.tsx"),

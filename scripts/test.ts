@@ -57,9 +57,24 @@ function ensureChromium() {
   }
 }
 
+// The export tests open our workbooks in a real spreadsheet program: LibreOffice Calc without
+// its GUI (Debian's libreoffice-calc-nogui, about 280 MB installed), converted headless to CSV.
+const soffice = process.env.SOFFICE_PATH ?? "/usr/bin/soffice";
+function ensureLibreOffice() {
+  if (fs.existsSync(soffice)) return;
+  if (process.getuid?.() === 0) {
+    console.log("[test] LibreOffice missing; installing Debian's libreoffice-calc-nogui for the spreadsheet checks ...");
+    spawnSync("apt-get", ["update", "-q"], { stdio: "inherit" });
+    spawnSync("apt-get", ["install", "-y", "-q", "libreoffice-calc-nogui"], { stdio: "inherit", env: { ...process.env, DEBIAN_FRONTEND: "noninteractive" } });
+  } else {
+    console.log(`[test] LibreOffice is not at ${soffice}; the spreadsheet checks will fail. Install it: sudo apt-get install -y libreoffice-calc-nogui`);
+  }
+}
+
 const t0 = Date.now();
 if (wanted.has("vitest")) {
   ensureChromium();
+  ensureLibreOffice();
   // Start the cluster before vitest loads its config, so the test URL names the port it really
   // uses (a clash with another clone can move it).
   if (!process.env.DATABASE_URL && !process.env.TEST_DATABASE_URL) {

@@ -2,6 +2,7 @@
 // address) or a 403 page; API routes get 401/403 JSON.
 import { data, redirect } from "react-router";
 import { sessionOf } from "./session.server";
+import { acceptsBearer, bearerTokenOf, personOfToken } from "./api-tokens.server";
 import { Course, CourseMembership, User, ROLE_LABELS, type CourseRole, type Role } from "./db/models.server";
 
 interface GuardOptions {
@@ -25,6 +26,8 @@ export interface Principal {
   via: "session" | (string & {});
   /** the user_sessions row, when signed in through the session cookie */
   sessionId?: number;
+  /** the api_tokens row, when the request came with `Authorization: Bearer` */
+  tokenId?: number;
 }
 type Credential = (request: Request) => Promise<Principal | null>;
 
@@ -33,7 +36,18 @@ const sessionCredential: Credential = async (request) => {
   return found ? { user: found.user, via: "session", sessionId: found.session.id } : null;
 };
 
-const CREDENTIALS: Credential[] = [sessionCredential];
+// A Bearer token on an API path or download; a bad one is refused at once (never falls back to the cookie).
+const bearerCredential: Credential = async (request) => {
+  const token = bearerTokenOf(request);
+  if (token === undefined || !acceptsBearer(new URL(request.url).pathname)) return null;
+  const found = await personOfToken(token);
+  if (!found.ok) {
+    throw Response.json({ error: found.message }, { status: 401, headers: { "WWW-Authenticate": 'Bearer error="invalid_token"' } });
+  }
+  return { user: found.user, via: "token", tokenId: found.tokenId };
+};
+
+const CREDENTIALS: Credential[] = [bearerCredential, sessionCredential];
 
 // The layout's loader and the page's loader get the same Request: look the person up once.
 const principalsByRequest = new WeakMap<Request, Promise<Principal | null>>();

@@ -8,6 +8,8 @@ import { formId } from "~/.server/ids.server";
 import { endOneSession, endSessionsOf, liveSessionsOf } from "~/.server/session.server";
 import { browserName } from "~/lib/user-agent";
 import { Button, Field, FormMessage } from "~/components/form";
+import { apiTokensOf, checkTokenRequest, createApiToken, revokeApiToken } from "~/.server/api-tokens.server";
+import { ApiTokensSection } from "~/components/api-tokens-section";
 import { PageTitle } from "~/components/page";
 
 export const meta: Route.MetaFunction = () => [{ title: "Your account · Ratebook" }];
@@ -24,10 +26,22 @@ export async function loader({ request }: Route.LoaderArgs) {
     lastSeen: when(s.lastSeenAt),
     current: s.id === mine,
   }));
-  return { name: user.displayName, email: user.email, role: user.role, minLength: MIN_PASSWORD_LENGTH, sessions };
+  const tokens = (await apiTokensOf(user.id)).map((t) => ({
+    ...t,
+    created: when(t.createdAt),
+    expires: t.expiresAt ? when(t.expiresAt) : null,
+    lastUsed: t.lastUsedAt ? when(t.lastUsedAt) : null,
+  }));
+  return { name: user.displayName, email: user.email, role: user.role, minLength: MIN_PASSWORD_LENGTH, sessions, tokens };
 }
 
-type ActionResult = { intent: string; changed?: boolean; errors: FieldErrors; notice?: string };
+type ActionResult = {
+  intent: string;
+  changed?: boolean;
+  errors: FieldErrors;
+  notice?: string;
+  newToken?: { name: string; token: string; expires: string | null };
+};
 
 export async function action({ request }: Route.ActionArgs) {
   const user = await requireUser(request);
@@ -46,6 +60,17 @@ export async function action({ request }: Route.ActionArgs) {
     const count = await endSessionsOf(user.id, "ended-from-account", { exceptId: mine });
     return reply({ errors: {}, notice: count === 1 ? "1 other session is ended." : `${count} other sessions are ended.` });
   }
+  if (intent === "create-token") {
+    const checked = checkTokenRequest({ name: form.get("tokenName") ?? "", expiresInDays: form.get("expiresInDays") ?? "" });
+    if (!checked.ok) return reply({ errors: Object.fromEntries(checked.errors.map((e) => [e.path, e.message])) }, 400);
+    const made = await createApiToken(user, checked.name, checked.expiresInDays);
+    return reply({ errors: {}, newToken: { name: made.name, token: made.token, expires: made.expiresAt ? when(made.expiresAt) : null } });
+  }
+  if (intent === "revoke-token") {
+    const id = formId(form, "tokenId");
+    if (id === null || !(await revokeApiToken(user.id, id))) return reply({ errors: { form: "That is not one of your tokens; reload the page and try again." } }, 404);
+    return reply({ errors: {}, notice: "The token is revoked; it is refused from now on." });
+  }
   if (intent !== "change-password") return reply({ errors: { form: `Unknown action "${intent}".` } }, 400);
   const result = await changeOwnPassword(user, { current: form.get("current"), password: form.get("password"), confirm: form.get("confirm") }, mine);
   return reply({ changed: result.ok, errors: result.ok ? {} : result.errors }, result.ok ? 200 : 400);
@@ -54,7 +79,8 @@ export async function action({ request }: Route.ActionArgs) {
 export default function Account({ loaderData, actionData }: Route.ComponentProps) {
   const busy = useNavigation().state === "submitting";
   const errors = actionData?.intent === "change-password" ? actionData.errors : {};
-  const sessionProblem = actionData && actionData.intent !== "change-password" ? actionData.errors.form : undefined;
+  const tokenIntent = actionData?.intent === "create-token" || actionData?.intent === "revoke-token";
+  const sessionProblem = actionData && actionData.intent !== "change-password" && !tokenIntent ? actionData.errors.form : undefined;
   const others = loaderData.sessions.filter((s) => !s.current).length;
   return (
     <div className="max-w-2xl">
@@ -74,7 +100,7 @@ export default function Account({ loaderData, actionData }: Route.ComponentProps
       <section aria-labelledby="sessions-h" className="mt-10">
         <h2 id="sessions-h" className="mb-1 text-xl font-bold">Where you are signed in</h2>
         <p className="mb-3 text-ink-soft">Each browser you signed in with. Ending a session signs that browser out at once; sessions end by themselves 12 hours after sign-in.</p>
-        {actionData?.notice ? <FormMessage tone="info">{actionData.notice}</FormMessage> : null}
+        {actionData?.notice && !tokenIntent ? <FormMessage tone="info">{actionData.notice}</FormMessage> : null}
         {sessionProblem ? <FormMessage tone="error">{sessionProblem}</FormMessage> : null}
         <ul className="divide-y divide-rule rounded border border-rule bg-white">
           {loaderData.sessions.map((s) => (
@@ -100,6 +126,14 @@ export default function Account({ loaderData, actionData }: Route.ComponentProps
           </Form>
         ) : null}
       </section>
+
+      <ApiTokensSection
+        tokens={loaderData.tokens}
+        newToken={tokenIntent ? actionData?.newToken : undefined}
+        errors={tokenIntent ? actionData!.errors : {}}
+        notice={tokenIntent ? actionData?.notice : undefined}
+        busy={busy}
+      />
     </div>
   );
 }

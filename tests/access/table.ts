@@ -64,6 +64,10 @@ export const ACCESS: Record<string, RouteAccess> = {
   "routes/api/fit.ts": { url: "/api/fit", get: API_NO_METHOD, post: [401, 400, 400, 400, 403, 403] },
   "routes/api/courses.ts": { url: "/api/courses", get: [401, 200, 200, 200, 200, 200], post: API_NO_METHOD },
   "routes/api/openapi.ts": { url: "/api/openapi.json", get: [200, 200, 200, 200, 200, 200], post: API_NO_METHOD },
+  // An empty body is not JSON: 400 for everyone signed in.
+  "routes/api/tokens.ts": { url: "/api/tokens", get: API_NO_METHOD, post: [401, 400, 400, 400, 400, 400] },
+  // Only DELETE revokes; an unknown id would be 404.
+  "routes/api/token.ts": { url: "/api/tokens/999999", get: API_NO_METHOD, post: [401, 405, 405, 405, 405, 405] },
 
   "routes/not-found.tsx": { url: "/no-such-page", get: [404, 404, 404, 404, 404, 404], post: NO_ACTION_PAGE, screens: ["signedOut", "student"] },
 };

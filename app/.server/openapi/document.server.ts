@@ -3,8 +3,9 @@
 // calls every path it describes.
 import type { ApiPart } from "./part.server";
 import { corePart } from "./core.server";
+import { tokensPart } from "./tokens.server";
 
-const parts: ApiPart[] = [corePart];
+const parts: ApiPart[] = [corePart, tokensPart];
 
 export function openApiDocument() {
   const paths: Record<string, Record<string, unknown>> = {};
