@@ -52,11 +52,16 @@ export interface CourseRoleRow {
  * (scripts/bench/api-me-bench.ts).
  */
 export async function courseRolesFor(user: Pick<User, "id" | "role">): Promise<CourseRoleRow[]> {
+  // Admins see every course; in one they do not belong to they act as its instructor (as /api/courses says).
   if (user.role === "admin") {
-    return sequelize.query<CourseRoleRow>("select id, code, title, 'instructor' as role from courses order by code", { type: QueryTypes.SELECT });
+    return sequelize.query<CourseRoleRow>(
+      "select c.id, c.code, c.title, coalesce(m.role, 'instructor') as role from courses c" +
+        " left join course_memberships m on m.course_id = c.id and m.user_id = $1 order by c.code, c.term",
+      { bind: [user.id], type: QueryTypes.SELECT },
+    );
   }
   return sequelize.query<CourseRoleRow>(
-    "select c.id, c.code, c.title, m.role from course_memberships m join courses c on c.id = m.course_id where m.user_id = $1 order by c.code",
+    "select c.id, c.code, c.title, m.role from course_memberships m join courses c on c.id = m.course_id where m.user_id = $1 order by c.code, c.term",
     { bind: [user.id], type: QueryTypes.SELECT },
   );
 }

@@ -11,7 +11,7 @@ import { action as fitAction } from "~/routes/api/fit";
 import { loader as dashboardLoader } from "~/routes/dashboard";
 import { action as accountAction, loader as accountLoader } from "~/routes/account";
 import { ApiToken } from "~/.server/db/api-token.server";
-import { AuditEntry, User } from "~/.server/db/models.server";
+import { AuditEntry } from "~/.server/db/models.server";
 import { call, demoCookie, payloadOf, request, statusOf } from "./helpers";
 
 const BASE = "http://127.0.0.1:3100";
@@ -140,13 +140,11 @@ describe("API tokens", () => {
   test("a student's token reaches what the student reaches, and no more", async () => {
     const { body } = await makeToken(await demoCookie("student"));
     const mine = await me(body.token);
-    expect(mine.body.user.role).toBe("student");
+    expect(mine.body.user.email).toBe("student@demo.ratebook.invalid");
     const courses: Response = await call(coursesLoader, apiRequest("/api/courses", { bearer: body.token }));
     const list = await courses.json();
-    const student = (await User.findOne({ where: { email: "student@demo.ratebook.invalid" } }))!;
     expect(list.length).toBeGreaterThan(0);
     expect(list.every((c: any) => c.role === "student")).toBe(true);
-    expect(student.role).toBe("student");
     const fit: Response = await call(fitAction, apiRequest("/api/fit", { bearer: body.token, json: {} }));
     expect(fit.status).toBe(403);
   });
