@@ -2,14 +2,30 @@
 // flags with the pasted lines they concern, the order comparison and two plots.
 import type { FitResult } from "~/lib/kinetics";
 import type { MeasuredKind } from "~/lib/fit-form";
-import { sig, unitText, withInterval } from "~/lib/format";
+import { distinctDigits, sig, styleNumbers, unitText, withInterval } from "~/lib/format";
 import { XYPlot } from "./xy-plot";
+import { TableBox } from "./page";
 
 const MODEL_TEXT: Record<string, string> = {
   "first-order": "first order in A",
   "second-order-A": "second order in A",
   "second-order-AB-stoichiometric": "first order in A and B, stoichiometric feed",
   "second-order-AB-unequal": "first order in A and B, unequal feed",
+};
+
+const FLAG_TITLE: Record<string, string> = {
+  "few-points": "Few readings",
+  "low-conversion": "Little of the reaction covered",
+  "unit-slip": "Units look off",
+  curvature: "Residuals bend",
+  "beyond-asymptote": "Readings past the long-time limit",
+  "time-order": "Times out of order",
+  "order-mismatch": "Another rate law fits better",
+  "straight-line-bias": "Hand line biased",
+  "fit-not-converged": "Curve fit did not settle",
+  "feed-mismatch": "First reading does not match the feed",
+  outlier: "A reading far from the rest",
+  "fits-disagree": "The two fits disagree",
 };
 
 function measuredLabel(kind: MeasuredKind, concentrationUnit: string) {
@@ -20,6 +36,41 @@ function measuredLabel(kind: MeasuredKind, concentrationUnit: string) {
     case "signal": return "signal (units as entered)";
     case "absorbance": return "absorbance (–)";
   }
+}
+
+function residualLabel(kind: MeasuredKind, concentrationUnit: string) {
+  if (kind === "concentrationA" || kind === "concentrationB") return `residual / (${concentrationUnit})`;
+  if (kind === "signal") return "residual (signal units)";
+  return "residual (–)";
+}
+
+/** A formula as written by the engine, in the screen's style (true minus, multiplication dot). */
+function formulaText(text: string) {
+  return styleNumbers(text.replace(/ - /g, " − ").replace(/\*/g, "·"));
+}
+
+type Flag = FitResult["flags"][number];
+
+/**
+ * A flag's message in the screen's number style. The engine writes the k values it compares with
+ * three figures; where they would print alike, they get the digits that tell them apart.
+ */
+function flagText(f: Flag, result: FitResult): string {
+  const compared: Partial<Record<string, number[]>> = {
+    "straight-line-bias": [result.line.k, result.k, result.line.k],
+    "fits-disagree": [result.weightedLine.k, result.nonlinear.k, f.prefer === "curve" ? result.nonlinear.k : result.weightedLine.k],
+  };
+  let message = f.message;
+  const values = compared[f.code];
+  if (values && values.every(Number.isFinite)) {
+    const d = distinctDigits(values, 3);
+    let i = 0;
+    message = message.replace(/-?\d+(?:\.\d+)?(?:e[+-]?\d+)?/g, (token) => {
+      if (i < values.length && token === values[i].toPrecision(3)) return sig(values[i++], d, true);
+      return token;
+    });
+  }
+  return styleNumbers(message);
 }
 
 interface Props {
@@ -36,44 +87,65 @@ export function FitReport({ result, kind, points, lines }: Props) {
   const timeUnit = result.units.time;
   const perMinute = timeUnit === "min";
   const ref = result.reference;
+  // Nothing to report without usable readings: say so, and show no numbers, verdict or best law.
+  if (!(result.n >= 2) || !Number.isFinite(result.k)) {
+    return (
+      <section aria-labelledby="result-h" className="mt-8 rounded border border-bad bg-bad-soft p-4">
+        <h2 id="result-h" className="text-2xl font-bold">No result</h2>
+        <p className="mt-1">
+          None of the readings could be used for the fit{result.n ? ` (${result.n} usable)` : ""}, so there is no k, no comparison with the reference and no best rate law.
+          {result.flags.length ? " What the engine found:" : " Check the measured quantity, the feed and the readings."}
+        </p>
+        {result.flags.length ? (
+          <ul className="mt-2 list-disc pl-6">
+            {result.flags.map((f) => <li key={f.code}>{flagText(f, result)}</li>)}
+          </ul>
+        ) : null}
+      </section>
+    );
+  }
   return (
     <section aria-labelledby="result-h" className="mt-8 rounded border border-rule bg-white p-4">
       <h2 id="result-h" className="text-2xl font-bold">Result</h2>
       <p className="mt-1 text-ink-soft">
-        Model: <strong className="text-ink">{MODEL_TEXT[result.model] ?? result.model}</strong>; straight line {result.line.form} against t.
+        Model: <strong className="text-ink">{MODEL_TEXT[result.model] ?? result.model}</strong>; straight line {formulaText(result.line.form)} against t.
         k is defined on A: −dCA/dt = k·CA{result.model.startsWith("second-order-AB") ? "·CB" : result.model === "second-order-A" ? "²" : ""}. Limiting reagent {result.limitingReagent}.
       </p>
-      <table className="mt-4 border-collapse text-left">
+      <div className="mt-4">
+      <TableBox label="Fitted values">
+      <table className="border-collapse text-left">
         <tbody>
           <tr className="border-b border-rule">
-            <th className="py-1 pr-6">k, straight-line fit</th>
-            <td className="num py-1">{withInterval(result.k, result.kCI95)} {unitText(result.kUnit)}</td>
+            <th className="px-2 py-1 pr-6">k, straight-line fit</th>
+            <td className="num px-2 py-1">{withInterval(result.k, result.kCI95)} {unitText(result.kUnit)}</td>
             {perMinute ? <td className="num py-1 pl-6 text-ink-soft">= {sig(result.k * 60)} {unitText(result.kUnit, true)}</td> : <td />}
           </tr>
           <tr className="border-b border-rule">
-            <th className="py-1 pr-6">k, curve fit to the readings</th>
-            <td className="num py-1">{withInterval(result.nonlinear.k, result.nonlinear.kCI95)} {unitText(result.kUnit)}</td>
+            <th className="px-2 py-1 pr-6">k, curve fit to the readings</th>
+            <td className="num px-2 py-1">{withInterval(result.nonlinear.k, result.nonlinear.kCI95)} {unitText(result.kUnit)}</td>
             {perMinute ? <td className="num py-1 pl-6 text-ink-soft">= {sig(result.nonlinear.k * 60)} {unitText(result.kUnit, true)}</td> : <td />}
           </tr>
           <tr className="border-b border-rule">
-            <th className="py-1 pr-6">k, unweighted line (hand method)</th>
-            <td className="num py-1">{withInterval(result.line.k, result.line.kCI95)} {unitText(result.kUnit)}</td><td />
+            <th className="px-2 py-1 pr-6">k, unweighted line (hand method)</th>
+            <td className="num px-2 py-1">{withInterval(result.line.k, result.line.kCI95)} {unitText(result.kUnit)}</td><td />
           </tr>
           {result.nonlinear.Sinf ? (
             <tr className="border-b border-rule">
-              <th className="py-1 pr-6">Final signal S∞ (fitted)</th>
-              <td className="num py-1">{withInterval(result.nonlinear.Sinf.value, result.nonlinear.Sinf.ci95)}</td><td />
+              <th className="px-2 py-1 pr-6">Final signal S∞ (fitted)</th>
+              <td className="num px-2 py-1">{withInterval(result.nonlinear.Sinf.value, result.nonlinear.Sinf.ci95)}</td><td />
             </tr>
           ) : null}
-          <tr className="border-b border-rule"><th className="py-1 pr-6">R² of the straight line</th><td className="num py-1">{sig(result.r2, 5)}</td><td /></tr>
-          <tr className="border-b border-rule"><th className="py-1 pr-6">Points used</th><td className="num py-1">{result.n}</td><td /></tr>
+          <tr className="border-b border-rule"><th className="px-2 py-1 pr-6">R² of the straight line</th><td className="num px-2 py-1">{sig(result.r2, 5)}</td><td /></tr>
+          <tr className="border-b border-rule"><th className="px-2 py-1 pr-6">Points used</th><td className="num px-2 py-1">{result.n}</td><td /></tr>
           <tr className="border-b border-rule">
-            <th className="py-1 pr-6">Start-time offset implied by the intercept</th>
-            <td className="num py-1">{sig(result.line.timeOffset, 3)} {timeUnit}</td><td />
+            <th className="px-2 py-1 pr-6">Start-time offset implied by the intercept</th>
+            <td className="num px-2 py-1">{sig(result.line.timeOffset, 3)} {timeUnit}</td><td />
           </tr>
-          <tr><th className="py-1 pr-6">Limiting reagent reacted by the last reading</th><td className="num py-1">{sig(result.fractionReacted * 100, 3)} %</td><td /></tr>
+          <tr><th className="px-2 py-1 pr-6">Limiting reagent reacted by the last reading</th><td className="num px-2 py-1">{sig(result.fractionReacted * 100, 3)} %</td><td /></tr>
         </tbody>
       </table>
+      </TableBox>
+      </div>
 
       {ref ? (
         <p className={`mt-4 rounded border-l-4 px-4 py-2 ${ref.withinTolerance ? "border-good" : "border-bad bg-bad-soft"}`}>
@@ -90,7 +162,7 @@ export function FitReport({ result, kind, points, lines }: Props) {
         <ul className="mt-2 space-y-2">
           {result.flags.map((f) => (
             <li key={f.code} className="rounded border-l-4 border-warn bg-warn-soft px-3 py-2">
-              <span className="font-bold">⚠ {f.code}</span>: {f.message}
+              <span className="font-bold"><span aria-hidden="true">⚠ </span>{FLAG_TITLE[f.code] ?? f.code}</span>: {flagText(f, result)}
               {f.rows.length ? <span className="text-ink-soft"> (lines {f.rows.slice(0, 12).map(lineOf).join(", ")}{f.rows.length > 12 ? ", …" : ""})</span> : null}
             </li>
           ))}
@@ -100,14 +172,16 @@ export function FitReport({ result, kind, points, lines }: Props) {
       {result.orderComparison ? (
         <>
           <h3 className="mt-6 text-lg font-bold">Which rate law describes the readings best</h3>
-          <table className="mt-2 border-collapse text-left">
+          <div className="mt-2">
+          <TableBox label="Rate laws compared">
+          <table className="border-collapse text-left">
             <thead>
-              <tr className="border-b-2 border-ink"><th className="py-1 pr-6">Rate law</th><th className="num py-1 pr-6">k (per second)</th><th className="num py-1 pr-6">Residual SD</th><th className="py-1">Residuals bend?</th></tr>
+              <tr className="border-b-2 border-ink"><th className="px-2 py-1 pr-6">Rate law</th><th className="num py-1 pr-6">k (per second)</th><th className="num py-1 pr-6">Residual SD</th><th className="py-1">Residuals bend?</th></tr>
             </thead>
             <tbody>
               {result.orderComparison.laws.map((l) => (
                 <tr key={l.model} className="border-b border-rule">
-                  <td className="py-1 pr-6">{l.model === result.orderComparison!.best ? "★ " : ""}{MODEL_TEXT[l.model] ?? l.model}{l.model === result.orderComparison!.best ? " (best)" : ""}</td>
+                  <td className="py-1 pr-6">{MODEL_TEXT[l.model] ?? l.model}{l.model === result.orderComparison!.best ? <strong> (best)</strong> : ""}</td>
                   <td className="num py-1 pr-6">{sig(l.k)} {unitText(l.kUnit)}</td>
                   <td className="num py-1 pr-6">{sig(l.residualStdDev, 3)}</td>
                   <td className="py-1">{l.curved ? "yes" : "no"}</td>
@@ -115,6 +189,8 @@ export function FitReport({ result, kind, points, lines }: Props) {
               ))}
             </tbody>
           </table>
+          </TableBox>
+          </div>
         </>
       ) : null}
 
@@ -139,10 +215,10 @@ function ReadingsPlots({ result, kind, points }: Pick<Props, "result" | "kind" |
       <XYPlot
         title="Residuals of the curve fit (reading minus model)"
         xLabel={timeLabel}
-        yLabel={`residual, ${label}`}
+        yLabel={residualLabel(kind, result.units.concentration)}
         points={points.map(([x], i) => [x, result.nonlinear.residuals[i]])}
         zeroLine
-        height={200}
+        height={240}
       />
     </>
   );

@@ -1,6 +1,10 @@
 // A small SVG plot: measured points, an optional model curve, an optional zero line (residuals).
 // Axes carry the quantity and unit; a caption says what the marks are, so colour is not needed.
+// The SVG is drawn at the width it is shown at (measured in the browser), so its text stays at
+// 11 px and more on a phone instead of shrinking with a scaled-down picture.
+import { useEffect, useRef, useState } from "react";
 import { scaleLinear } from "d3-scale";
+import { sig } from "~/lib/format";
 
 export interface XYPlotProps {
   title: string;
@@ -12,8 +16,10 @@ export interface XYPlotProps {
   height?: number;
 }
 
-const W = 640;
-const M = { top: 12, right: 16, bottom: 44, left: 72 };
+const DEFAULT_WIDTH = 640;
+const MAX_WIDTH = 768;
+const TICK_PX = 12;
+const LABEL_PX = 13;
 
 function extent(values: number[]): [number, number] {
   const finite = values.filter(Number.isFinite);
@@ -28,33 +34,47 @@ function extent(values: number[]): [number, number] {
   return [lo, hi];
 }
 
-function tickText(x: number) {
-  if (x === 0) return "0";
-  const a = Math.abs(x);
-  return a >= 1e4 || a < 1e-3 ? x.toExponential(1) : String(Number(x.toPrecision(4)));
+function useWidth<T extends HTMLElement>() {
+  const ref = useRef<T>(null);
+  const [width, setWidth] = useState(DEFAULT_WIDTH);
+  useEffect(() => {
+    const el = ref.current;
+    if (!el || typeof ResizeObserver === "undefined") return;
+    const observer = new ResizeObserver(([entry]) => setWidth(Math.max(240, Math.min(MAX_WIDTH, Math.floor(entry.contentRect.width)))));
+    observer.observe(el);
+    return () => observer.disconnect();
+  }, []);
+  return [ref, width] as const;
 }
 
 export function XYPlot({ title, xLabel, yLabel, points, curve = [], zeroLine = false, height = 300 }: XYPlotProps) {
+  const [box, W] = useWidth<HTMLDivElement>();
   const all = [...points, ...curve];
   const ys = all.map((p) => p[1]);
   if (zeroLine) ys.push(0);
+  const yScale = scaleLinear().domain(extent(ys)).nice();
+  const yTicks = yScale.ticks(height < 250 ? 4 : 5);
+  // Room on the left for the longest tick text and the rotated axis label.
+  const tickChars = Math.max(...yTicks.map((t) => sig(t, 3).length), 1);
+  const M = { top: 12, right: 16, bottom: 46, left: Math.ceil(tickChars * TICK_PX * 0.6) + 12 + LABEL_PX + 10 };
   const x = scaleLinear().domain(extent(all.map((p) => p[0]))).nice().range([M.left, W - M.right]);
-  const y = scaleLinear().domain(extent(ys)).nice().range([height - M.bottom, M.top]);
+  const y = yScale.range([height - M.bottom, M.top]);
   const path = curve
     .filter((p) => Number.isFinite(p[0]) && Number.isFinite(p[1]))
     .map((p, i) => `${i ? "L" : "M"}${x(p[0]).toFixed(1)},${y(p[1]).toFixed(1)}`)
     .join("");
+  const xTickCount = Math.max(2, Math.floor((W - M.left - M.right) / 70));
   return (
-    <figure className="my-4">
-      <svg viewBox={`0 0 ${W} ${height}`} role="img" aria-label={title} className="w-full max-w-3xl bg-white">
-        {y.ticks(5).map((t) => (
+    <figure className="my-4 max-w-3xl" ref={box}>
+      <svg width={W} height={height} viewBox={`0 0 ${W} ${height}`} role="img" aria-label={title} className="block max-w-full bg-white">
+        {yTicks.map((t) => (
           <g key={`y${t}`}>
             <line x1={M.left} x2={W - M.right} y1={y(t)} y2={y(t)} stroke="#e4e1da" />
-            <text x={M.left - 6} y={y(t)} textAnchor="end" dominantBaseline="middle" fontSize="11" className="tabular-nums">{tickText(t)}</text>
+            <text x={M.left - 6} y={y(t)} textAnchor="end" dominantBaseline="middle" fontSize={TICK_PX} className="tabular-nums">{sig(t, 3)}</text>
           </g>
         ))}
-        {x.ticks(6).map((t) => (
-          <text key={`x${t}`} x={x(t)} y={height - M.bottom + 16} textAnchor="middle" fontSize="11">{tickText(t)}</text>
+        {x.ticks(xTickCount).map((t) => (
+          <text key={`x${t}`} x={x(t)} y={height - M.bottom + 17} textAnchor="middle" fontSize={TICK_PX}>{sig(t, 3)}</text>
         ))}
         <line x1={M.left} x2={M.left} y1={M.top} y2={height - M.bottom} stroke="#1d2125" />
         <line x1={M.left} x2={W - M.right} y1={height - M.bottom} y2={height - M.bottom} stroke="#1d2125" />
@@ -63,8 +83,8 @@ export function XYPlot({ title, xLabel, yLabel, points, curve = [], zeroLine = f
         {points.filter((p) => Number.isFinite(p[1])).map((p, i) => (
           <circle key={i} cx={x(p[0])} cy={y(p[1])} r="3.5" fill="none" stroke="#1d2125" strokeWidth="1.5" />
         ))}
-        <text x={(M.left + W - M.right) / 2} y={height - 6} textAnchor="middle" fontSize="12" fontWeight="bold">{xLabel}</text>
-        <text transform={`translate(14 ${(M.top + height - M.bottom) / 2}) rotate(-90)`} textAnchor="middle" fontSize="12" fontWeight="bold">{yLabel}</text>
+        <text x={(M.left + W - M.right) / 2} y={height - 8} textAnchor="middle" fontSize={LABEL_PX} fontWeight="bold">{xLabel}</text>
+        <text transform={`translate(${LABEL_PX + 2} ${(M.top + height - M.bottom) / 2}) rotate(-90)`} textAnchor="middle" fontSize={LABEL_PX} fontWeight="bold">{yLabel}</text>
       </svg>
       <figcaption className="text-sm text-ink-soft">
         {title}: open circles are measured points{path ? "; the solid line is the fitted model" : ""}{zeroLine ? "; the dashed line is zero" : ""}.

@@ -56,3 +56,61 @@ describe("form to engine request", () => {
     });
   });
 });
+
+describe("separator and decimal mark, found together", () => {
+  test("semicolons with decimal commas are read, and the note says how", () => {
+    const p = parsePoints("t;CA\n0;0,0200\n5;0,0171\n10;0,0150\n15;0,0132");
+    expect(p.problems).toEqual([]);
+    expect(p.points).toEqual([[0, 0.02], [5, 0.0171], [10, 0.015], [15, 0.0132]]);
+    expect(p.note).toBe('Read 4 readings: columns separated by semicolons, decimal comma, line 1 taken as a header; column 1 ("t") as the time and column 2 ("CA") as the value.');
+  });
+
+  test("tabs with decimal commas (a spreadsheet paste in a decimal-comma locale)", () => {
+    const p = parsePoints("0\t0,02\n5\t0,0171\n10\t0,015");
+    expect(p.problems).toEqual([]);
+    expect(p.points[1]).toEqual([5, 0.0171]);
+  });
+
+  test("decimal commas in comma-separated text are one whole-paste message, not a nonsense fit", () => {
+    const p = parsePoints("0,2,107\n5,1,953\n10,1,841\n15,1,702\n20,1,6");
+    expect(p.points).toEqual([]);
+    expect(p.problems).toHaveLength(1);
+    expect(p.problems[0].message).toMatch(/decimal comma while commas also separate the columns \(line 1: "0,2,107"\)/);
+    const withHeader = parsePoints("time,CA\n0,2,107\n5,1,953\n10,1,841");
+    expect(withHeader.problems).toHaveLength(1);
+  });
+
+  test("extra columns are named as not used", () => {
+    const p = parsePoints("time,CA,T\n0,0.02,25.1\n5,0.0171,25.0\n10,0.015,25.2");
+    expect(p.problems).toEqual([]);
+    expect(p.note).toContain('column 1 ("time") as the time and column 2 ("CA") as the value; column 3 ("T") not used.');
+  });
+
+  test("space-separated columns, and units in cells when they match the form", () => {
+    const spaced = parsePoints("0   0.020\n5   0.0171\n10  0.0150");
+    expect(spaced.problems).toEqual([]);
+    expect(spaced.note).toContain("separated by spaces");
+    const withUnits = parsePoints("0 min;0.020 mol/L\n5 min;0.0171 mol/L\n10 min;0.0150 mol/L", { time: "min", concentration: "mol/L", kind: "concentrationA" });
+    expect(withUnits.problems).toEqual([]);
+    expect(withUnits.points).toHaveLength(3);
+    const wrongUnit = parsePoints("0 s;0.020\n5 s;0.0171\n10 s;0.0150", { time: "min" });
+    expect(wrongUnit.problems[0].message).toBe('Line 1, column 1 (time): "0 s" is in s, but the form says the data\'s time unit is min.');
+  });
+
+  test("the same problem on many lines is one message for the whole paste", () => {
+    const rows = ["t,v", ...Array.from({ length: 12 }, (_, i) => `${i},n/a`)].join("\n");
+    const p = parsePoints(`${rows}\n13,0.5\n14,0.4`);
+    expect(p.problems).toHaveLength(1);
+    expect(p.problems[0].message).toBe('Column 2 (value) is not a number on 12 lines (2, 3, 4, 5, 6, …), for example "n/a".');
+  });
+});
+
+describe("messages use the form's labels", () => {
+  test("no internal field names in engine messages", () => {
+    const m = problemFromEnginePath("temperatureC", "is required to carry the reference k to the run temperature with EaKJ", []);
+    expect(m).toEqual({ field: "temperatureC", message: "Is required to carry the reference k to the run temperature with the activation energy" });
+    const t = problemFromEnginePath("points[0][0]", "a time of 1e9 min is more than 100000000 s (about three years): check the time column and units.time", [2]);
+    expect(t.message).not.toMatch(/units\.time|1e9/);
+    expect(t.message).toContain("the time unit of the data");
+  });
+});

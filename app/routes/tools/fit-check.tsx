@@ -29,6 +29,7 @@ type ApiReply = FitResult | { errors: Array<{ path: string; message: string }> }
 export default function FitCheck() {
   const [values, setValues] = useState<FitFormValues>(EMPTY);
   const [formProblems, setFormProblems] = useState<FormProblem[]>([]);
+  const [note, setNote] = useState<string | null>(null);
   const [sent, setSent] = useState<{ points: Array<[number, number]>; lines: number[]; kind: FitFormValues["kind"] }>({ points: [], lines: [], kind: "concentrationA" });
   const fetcher = useFetcher<ApiReply>();
   const reply = fetcher.state === "idle" ? fetcher.data : undefined;
@@ -44,6 +45,7 @@ export default function FitCheck() {
     e.preventDefault();
     const built = buildFitRequest(values);
     setFormProblems(built.problems);
+    setNote(built.note);
     if (built.problems.length) return;
     setSent({ points: built.request.points as Array<[number, number]>, lines: built.lines, kind: values.kind });
     fetcher.submit(built.request as never, { method: "post", action: "/api/fit", encType: "application/json" });
@@ -55,7 +57,7 @@ export default function FitCheck() {
         Check a data set
       </PageTitle>
       <p className="mb-4">
-        <button type="button" className="text-accent underline" onClick={() => { setValues(inventedExample()); setFormProblems([]); }}>
+        <button type="button" className="text-accent underline" onClick={() => { setValues(inventedExample()); setFormProblems([]); setNote(null); }}>
           Fill in an invented example
         </button>{" "}
         <span className="text-sm text-ink-soft">(made-up demo readings, not a real run)</span>
@@ -113,10 +115,11 @@ export default function FitCheck() {
         </fieldset>
         <div className="mb-4">
           <label htmlFor="f-data" className="block font-bold">Readings: time, value (one row per line)</label>
-          <p id="f-data-hint" className="text-sm text-ink-soft">Paste from a spreadsheet or type; comma, tab or semicolon between columns; a header line is fine.</p>
+          <p id="f-data-hint" className="text-sm text-ink-soft">Paste from a spreadsheet or type: time in the first column, the measured value in the second; tabs, semicolons, commas or spaces between columns; a decimal point or comma; a header line is fine.</p>
           <textarea id="f-data" name="data" rows={10} value={values.data} onChange={set("data")} aria-describedby="f-data-hint f-data-error"
             aria-invalid={errorFor("data") ? true : undefined}
             className={`mt-1 w-full rounded border bg-white px-3 py-2 font-mono text-sm ${errorFor("data") ? "border-bad" : "border-ink-soft"}`} />
+          {note && !errorFor("data") ? <p role="status" className="mt-1 text-sm text-ink-soft">{note}</p> : null}
           {problems.filter((p) => p.field === "data").map((p, i) => (
             <p key={i} id={i === 0 ? "f-data-error" : undefined} role="alert" className="mt-1 text-sm font-bold text-bad"><span aria-hidden="true">✕ </span>{p.message}</p>
           ))}
