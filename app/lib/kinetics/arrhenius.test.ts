@@ -1,5 +1,7 @@
 import { describe, expect, it } from "vitest";
-import { GAS_CONSTANT, fitArrhenius, rateConstantAt } from "./arrhenius.ts";
+import { MultivariateLinearRegression } from "ml-regression";
+import nist from "../../../tests/fixtures/nist-strd-linear.json";
+import { GAS_CONSTANT, fitArrhenius, fitWeightedLine, rateConstantAt, runArrhenius } from "./arrhenius.ts";
 import { normalSource } from "./synthetic.ts";
 
 // Ethyl acetate + hydroxide: k(25 C) = 0.1120 L/(mol s), Ea = 11.56 kcal/mol = 48.37 kJ/mol
@@ -64,5 +66,53 @@ describe("Arrhenius temperature dependence", () => {
         { temperatureK: 320, k: 3 },
       ]),
     ).toThrow(/k > 0/);
+  });
+});
+
+describe("pooled Arrhenius fit weighted by the benches' k uncertainties", () => {
+  // seeded synthetic benches around the published values above; k scatter as each SE says
+  const normal = normalSource(99);
+  const benches = [15, 20, 25, 30, 35, 40].map((c, i) => {
+    const T = c + 273.15;
+    const se = 0.02 + 0.01 * i; // relative SE of k, larger at the hotter benches (invented)
+    const k = rateConstantAt(K25, T25, EA, T) * Math.exp(se * normal());
+    return { id: `bench ${i + 1}`, temperatureK: T, k, kStdErr: se * k };
+  });
+
+  it("agrees with an independent weighted regression (ml-regression on the sqrt(w)-scaled design)", () => {
+    const fit = fitArrhenius(benches);
+    // Weighted least squares is ordinary least squares on rows scaled by sqrt(w), through the
+    // origin with the two scaled columns (standard result; e.g. Draper and Smith, Applied
+    // Regression Analysis, 3rd ed., 9.2; from memory). ml-regression's variance is SSE/(n - p).
+    const x = benches.map((b) => {
+      const s = b.k / b.kStdErr;
+      return [s, s / b.temperatureK];
+    });
+    const y = benches.map((b) => [(b.k / b.kStdErr) * Math.log(b.k)]);
+    const ref = new MultivariateLinearRegression(x, y, { intercept: false, statistics: true });
+    const [lnA, slope] = ref.weights.map((w: number[]) => w[0]);
+    expect(fit.lnA).toBeCloseTo(lnA, 8);
+    expect(fit.Ea / (-GAS_CONSTANT * slope)).toBeCloseTo(1, 10);
+    expect(fit.lnAStdErr / ref.stdErrors[0]).toBeCloseTo(1, 8);
+    expect(fit.EaStdErr / (GAS_CONSTANT * ref.stdErrors[1])).toBeCloseTo(1, 8);
+    expect(fit.weighting).toBe("k-uncertainty");
+    expect(fit.benches.map((b) => b.id)).toEqual(benches.map((b) => b.id));
+    expect(fit.benches[0].lnResidual).toBeCloseTo(Math.log(benches[0].k) - (fit.lnA - fit.Ea / (GAS_CONSTANT * benches[0].temperatureK)), 12);
+  });
+
+  it("with equal weights reproduces NIST StRD Norris (the weighted line is the ordinary one)", () => {
+    const d = nist.datasets.Norris;
+    const line = fitWeightedLine(d.x, d.y, d.x.map(() => 1));
+    expect(line.slope / d.certified.B1.estimate_num).toBeCloseTo(1, 10);
+    expect(line.slopeStdErr / d.certified.B1.sd_num).toBeCloseTo(1, 9);
+    expect(line.interceptStdErr / d.certified.B0.sd_num).toBeCloseTo(1, 9);
+  });
+
+  it("runArrhenius reports Ea in kJ/mol with its interval, covering the true value", () => {
+    const r = runArrhenius(benches.map((b) => ({ id: b.id, temperatureC: b.temperatureK - 273.15, k: b.k, kStdErr: b.kStdErr })));
+    expect(r.EaKJ).toBeCloseTo(r.Ea / 1000, 12);
+    expect(r.EaKJCI95[0]).toBeLessThan(EA / 1000);
+    expect(r.EaKJCI95[1]).toBeGreaterThan(EA / 1000);
+    expect(r.ACI95[0]).toBeLessThan(r.A);
   });
 });

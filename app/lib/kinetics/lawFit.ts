@@ -48,8 +48,8 @@ export function toSI(request: FitRequest): RunData {
 // For the other laws in the order comparison the straight line only seeds the nonlinear fit,
 // so on long records it is drawn through every stride-th point.
 const SEED_LINE_POINTS = 2000;
-/** k steps below this many standard errors change the SSE by a negligible (quadratic) amount */
-const COMPARISON_TOLERANCE = 0.03;
+/** a k within this many standard errors of the optimum leaves the SSE above its minimum by 0.3^2 sigma^2, a negligible AIC change */
+export const COMPARISON_TOLERANCE = 0.3;
 
 /**
  * Straight-line (unweighted) and nonlinear fits of one rate law (`seedOnly`: the line just seeds

@@ -139,6 +139,7 @@ export function fitMarkingLine(input: MarkingLineInput): MarkingLine | null {
   const lawCode = law === "first-order" ? 0 : law === "second-order-A" ? 1 : 2;
   const absolute = noise === "absolute";
   const slopeAbs = Math.abs(map.slope);
+  let checkBend = true;
   for (let pass = 0; pass < REWEIGHT_PASSES; pass++) {
     wMax = 0;
     for (let j = 0; j < m; j++) {
@@ -164,8 +165,22 @@ export function fitMarkingLine(input: MarkingLineInput): MarkingLine | null {
       vUsed[j] = v;
       const wj = 1 / (g * g * v * v);
       const bend = ((input.sigma * v) / slopeAbs) * ratio;
-      w[j] = Number.isFinite(wj) && !(bend > MAX_TRANSFORM_CURVATURE) ? wj : 0;
+      w[j] = Number.isFinite(wj) && !(checkBend && bend > MAX_TRANSFORM_CURVATURE) ? wj : 0;
       if (w[j] > wMax) wMax = w[j];
+    }
+    if (pass === 0) {
+      // too few readings where the transform is straight enough: keep them all rather than fail
+      let kept = 0;
+      for (let j = 0; j < m; j++) if (w[j] > 0) kept++;
+      if (kept < p + 2) {
+        checkBend = false;
+        wMax = 0;
+        for (let j = 0; j < m; j++) {
+          const wj = 1 / (gUsed[j] * gUsed[j] * vUsed[j] * vUsed[j]);
+          w[j] = Number.isFinite(wj) ? wj : 0;
+          if (w[j] > wMax) wMax = w[j];
+        }
+      }
     }
     if (!(wMax > 0)) return null;
     for (let j = 0; j < m; j++) w[j] /= wMax; // keep the sums well scaled

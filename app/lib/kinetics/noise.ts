@@ -63,9 +63,13 @@ export function chooseNoiseModel(
   kind: MeasurementKind,
   expected: ArrayLike<number>,
   residuals: ArrayLike<number>,
+  /** the relative model judged at its own (weighted) fit, when there is one */
+  relativeFit?: { expected: ArrayLike<number>; residuals: ArrayLike<number> },
 ): NoiseEstimate {
   const absolute = logLikelihood("absolute", kind, expected, residuals);
-  const relative = logLikelihood("relative", kind, expected, residuals);
+  const relative = relativeFit
+    ? logLikelihood("relative", kind, relativeFit.expected, relativeFit.residuals)
+    : logLikelihood("relative", kind, expected, residuals);
   if (choice !== "estimate") return { model: choice, chosen: "request", logLikelihood: { absolute, relative } };
   // ties (exact data, or readings that hardly change) go to absolute noise, the usual case
   return { model: relative > absolute ? "relative" : "absolute", chosen: "residuals", logLikelihood: { absolute, relative } };

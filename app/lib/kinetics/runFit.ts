@@ -31,13 +31,13 @@ import {
   checkUnitSlip,
   type Flag,
 } from "./diagnostics.ts";
-import { fitLaw, searchStartOffset, timeOrder, toSI, type LawFit, type RunData } from "./lawFit.ts";
+import { COMPARISON_TOLERANCE, fitLaw, fitShifted, searchStartOffset, timeOrder, toSI, type LawFit, type RunData } from "./lawFit.ts";
 import { chooseNoiseModel, noiseWeights, type NoiseModel } from "./noise.ts";
 import { fitNonlinear, type NonlinearFit } from "./nonlinearFit.ts";
 import { fitMarkingLine, type MarkingLine } from "./markingLine.ts";
 import { linearise, type CurveLinearisation } from "./curveJacobian.ts";
 import { findOutlier } from "./outliers.ts";
-import { checkFeed, formatFactor } from "./feedCheck.ts";
+import { checkFeed, formatFactor, likelyCause } from "./feedCheck.ts";
 import { candidateLaws, compare, type FittedCandidate, type LawComparison, type OrderComparison } from "./orderComparison.ts";
 import { runsTest, confidenceInterval } from "./statistics.ts";
 import jStat from "jstat";
@@ -168,11 +168,20 @@ export function runFit(request: FitRequest): FitResult {
   // 1. unweighted fits: the hand line, and a curve fit to find the noise model
   const hand = fitLaw(law, data, throughOrigin);
   const expected0 = expectedValues(hand.nonlinear, data.values);
-  const noise = chooseNoiseModel(request.options?.noise ?? "estimate", kind, expected0, hand.nonlinear.residuals);
-  const weights = noise.model === "absolute" ? undefined : noiseWeights(noise.model, kind, expected0);
-
-  // 2. the curve fit under the noise model (the same fit when noise is absolute)
+  // 2. the curve fit under the noise model (the same fit when noise is absolute). To choose
+  // the model, each is judged at its own best fit: an unweighted fit misplaces the late,
+  // precise readings of relative noise, which would make relative noise look unlikely.
+  const choice = request.options?.noise ?? "estimate";
+  let noise = choice === "estimate" ? chooseOnRows(law, data, hand, expected0, kind) : chooseNoiseModel(choice, kind, expected0, hand.nonlinear.residuals);
+  const relativeWeights = noise.model === "relative" ? noiseWeights("relative", kind, expected0) : undefined;
+  let weights = relativeWeights;
   let curve: NonlinearFit = weights ? refitCurve(law, data, hand, weights) : hand.nonlinear;
+  if (weights) {
+    // weights from the weighted fit's own values, not the unweighted one's (one more pass of
+    // iteratively reweighted least squares)
+    weights = noiseWeights("relative", kind, expectedValues(curve, data.values));
+    curve = refitCurve(law, data, hand, weights, curve.k);
+  }
   const fixedCurve = curve;
   let map: AffineMap = sinfFitted ? signalMap((measurement as { S0: number }).S0, curve.Sinf!.value, feed) : hand.map;
   let t0 = 0;
@@ -180,18 +189,28 @@ export function runFit(request: FitRequest): FitResult {
 
   // 3. the marking line
   let lin = linearise(curveAt(law, data, curve, map, 0, false, weights));
-  let mark = markingLine(law, data, map, noise.model, throughOrigin, curve, 0, lin);
+  // noise scale for the transform check: the curve fit's, or the readings' own when a poor
+  // curve (a late start, a wrong law) inflates it
+  const scatter = modelFreeScale(data, weights);
+  const sigma = curve.residualStdDev <= 2 * scatter ? curve.residualStdDev : scatter;
+  let mark = markingLine(law, data, map, noise.model, throughOrigin, curve, 0, lin, sigma);
 
   // 4. free start: a clearly positive intercept means the reaction was under way at the clock's zero
   if (mark && !throughOrigin && mark.intercept > 3 * mark.interceptStdErr && mark.slope > 0 && n >= 6) {
     const guess = mark.intercept / mark.slope;
-    const found = searchStartOffset(law, data, sinfFitted ? undefined : map, weights, curve.k, 3 * guess);
-    const p = curve.dof;
-    const F = ((curve.sse - found.fit.sse) * (p - 1)) / found.fit.sse;
+    // searched and tested unweighted, against the unweighted fixed-start fit: the noise model
+    // chosen on a misfit is not to be trusted, so it is chosen again on the shifted fit
+    const found = searchStartOffset(law, data, sinfFitted ? undefined : hand.map, undefined, hand.nonlinear.k, 3 * guess);
+    const p = hand.nonlinear.dof;
+    const F = ((hand.nonlinear.sse - found.fit.sse) * (p - 1)) / found.fit.sse;
     const pValue = 1 - jStat.centralF.cdf(F, 1, p - 1);
     if (found.t0 > 0 && found.fit.converged && F > 0 && pValue < START_OFFSET_P) {
       t0 = found.t0;
       curve = found.fit;
+      const expected = expectedValues(curve, data.values);
+      noise = chooseNoiseModel(request.options?.noise ?? "estimate", kind, expected, curve.residuals);
+      weights = noise.model === "absolute" ? undefined : noiseWeights(noise.model, kind, expected);
+      if (weights) curve = fitShifted(law, data, sinfFitted ? undefined : hand.map, t0, weights, curve.k);
       if (sinfFitted) map = signalMap((measurement as { S0: number }).S0, curve.Sinf!.value, feed);
       lin = linearise(curveAt(law, data, curve, map, t0, true, weights));
       const s2 = curve.sse / (curve.dof - 1);
@@ -200,7 +219,7 @@ export function runFit(request: FitRequest): FitResult {
       const t0Se = lin && t0Index >= 0 ? Math.sqrt(s2 * lin.inverse[t0Index * lin.params.length + t0Index]) : NaN;
       curve = { ...curve, kStdErr: kSe, kCI95: confidenceInterval(curve.k, kSe, curve.dof - 1), dof: curve.dof - 1, residualStdDev: Math.sqrt(s2) };
       start = { offset: t0 / ts, stdErr: t0Se / ts, ci95: confidenceInterval(t0, t0Se, curve.dof).map((x) => x / ts) as [number, number], F, p: pValue };
-      mark = markingLine(law, data, map, noise.model, throughOrigin, curve, t0, lin);
+      mark = markingLine(law, data, map, noise.model, throughOrigin, curve, t0, lin, Math.min(sigma, curve.residualStdDev));
     }
   }
 
@@ -229,7 +248,11 @@ export function runFit(request: FitRequest): FitResult {
     feedText: feedText(request, kind),
     concentrationUnit: request.units.concentration,
   });
-  if (feedFinding) flags.push({ code: "feed-mismatch", message: feedFinding.message, rows: feedFinding.rows, factor: feedFinding.factor });
+  // with relative noise chosen, also the unweighted view: a wrong feed misleads the choice
+  const feedFound =
+    feedFinding ??
+    (sinfFitted ? null : impliedFeed(law, data, hand, fixedCurve, weights, sd, request, 2) ?? (weights ? impliedFeed(law, data, hand, hand.nonlinear, undefined, sd, request, 3) : null));
+  if (feedFound) flags.push({ code: "feed-mismatch", message: feedFound.message, rows: feedFound.rows, factor: feedFound.factor });
 
   // readings past the long-time limit: left out of the lines; flagged when beyond noise
   const excluded = mark ? mark.excludedRows : hand.beyondRows;
@@ -238,7 +261,7 @@ export function runFit(request: FitRequest): FitResult {
     const band = (3 * sd[i]) / change;
     return p - 1 > band || predictedProgress(law, feed, curve.k, data.t[i] + t0) < 0.9;
   });
-  if (!feedFinding) push(checkBeyondAsymptote(beyond, `CA = ${formatNumber(end / cs)} ${request.units.concentration}`));
+  if (!feedFound) push(checkBeyondAsymptote(beyond, `CA = ${formatNumber(end / cs)} ${request.units.concentration}`));
 
   const fractionReacted = (feed.CA0 - concentrationA(law, feed, curve.k, data.t[lastRow] + t0)) / maxReactedA(feed);
   push(checkLowConversion(fractionReacted, limitingReagent(feed), lastRow));
@@ -246,8 +269,10 @@ export function runFit(request: FitRequest): FitResult {
   push(curvature);
   push(checkConverged(curve.converged));
 
-  // the k that marks
-  const useCurve = !mark || !Number.isFinite(mark.slopeStdErr);
+  // the k that marks: the weighted line, except with Sinf fitted, where the line needs the
+  // curve fit's Sinf anyway and the seeded audit shows it less reliable than the curve fit
+  // itself (README: figures)
+  const useCurve = sinfFitted || !mark || !Number.isFinite(mark.slopeStdErr);
   const k = useCurve ? curve.k : mark!.slope;
   const kStdErr = useCurve ? curve.kStdErr : mark!.slopeStdErr;
   const kCI95: [number, number] = useCurve ? curve.kCI95 : mark!.slopeCI95;
@@ -266,7 +291,7 @@ export function runFit(request: FitRequest): FitResult {
   if (lin && !exact) {
     const outlier = findOutlier(curve.residuals, weights, lin.leverage, lin.params.length);
     if (outlier) {
-      const without = markingLine(law, data, map, noise.model, throughOrigin, curve, t0, lin, new Set([outlier.row]));
+      const without = markingLine(law, data, map, noise.model, throughOrigin, curve, t0, lin, sigma, new Set([outlier.row]));
       const kWithout = without ? without.slope : NaN;
       flags.push({
         code: "outlier",
@@ -279,7 +304,10 @@ export function runFit(request: FitRequest): FitResult {
 
   let orderComparison: OrderComparison | undefined;
   if (request.options?.compareOrders ?? true) {
-    orderComparison = compareLaws(law, data, fixedCurve, weights, curvature !== null && t0 === 0, order, throughOrigin, exact);
+    // with a late start found, every law gets its own start offset too
+    orderComparison = t0 > 0
+      ? compareLaws(law, data, curve, weights, curvature !== null, order, throughOrigin, exact, 3 * t0)
+      : compareLaws(law, data, fixedCurve, weights, curvature !== null, order, throughOrigin, exact);
     const asked = orderComparison.laws.find((l) => l.model === model || l.equivalent.includes(model));
     const best = orderComparison.laws.find((l) => l.model === orderComparison!.best)!;
     if (asked && !exact) push(checkOrderMismatch(n, model, best.model, asked.deltaAIC, orderComparison.threshold));
@@ -288,7 +316,7 @@ export function runFit(request: FitRequest): FitResult {
   let reference: FitResult["reference"];
   if (request.reference) {
     reference = referenceCheck(request, k);
-    if (!feedFinding) push(checkUnitSlip(k, reference.kAtT, law !== "first-order"));
+    if (!feedFound) push(checkUnitSlip(k, reference.kAtT, law !== "first-order"));
   }
 
   const textbook = textbookLine(law, feed);
@@ -355,6 +383,103 @@ export function runFit(request: FitRequest): FitResult {
   };
 }
 
+/** rows on which the noise model is chosen for long records (evenly spaced) */
+const NOISE_CHOICE_POINTS = 2000;
+
+/**
+ * Absolute or relative noise, each judged at its own best fit (an unweighted fit misplaces the
+ * late, precise readings of relative noise, which would make relative noise look unlikely).
+ * Long records are judged on evenly spaced rows.
+ */
+function chooseOnRows(law: RateLaw, data: RunData, hand: LawFit, expected: Float64Array, kind: FitRequest["measurement"]["kind"]) {
+  const n = data.t.length;
+  const stride = Math.ceil(n / NOISE_CHOICE_POINTS);
+  const rows = stride > 1 ? sampleRows(n, stride) : null;
+  const sub = rows ? pick(data, rows) : data;
+  const subExpected = rows ? Float64Array.from(rows, (i) => expected[i]) : expected;
+  const subResiduals = rows ? rows.map((i) => hand.nonlinear.residuals[i]) : hand.nonlinear.residuals;
+  const relativeFit = refitCurve(law, sub, hand, noiseWeights("relative", kind, subExpected));
+  return chooseNoiseModel("estimate", kind, subExpected, subResiduals, {
+    expected: expectedValues(relativeFit, sub.values),
+    residuals: relativeFit.residuals,
+  });
+}
+
+/** level of the F-test by which the readings reject the stated feed value (a rule of this engine) */
+export const FEED_VALUE_P = 0.001;
+
+/**
+ * When the first reading sits above the start the feed gives (which a late start cannot explain)
+ * and far from the curve, the feed value of the measured species (CA0, or CB0 for B) is
+ * fitted freely: if the readings reject the stated value (F-test at FEED_VALUE_P) by more than
+ * 2 %, they imply a different feed.
+ */
+function impliedFeed(
+  law: RateLaw,
+  data: RunData,
+  hand: LawFit,
+  stated: NonlinearFit,
+  weights: Float64Array | undefined,
+  sd: ArrayLike<number>,
+  request: FitRequest,
+  zMin: number,
+) {
+  const { feed, measurement, t, values } = data;
+  const n = t.length;
+  if (n < 6 || !stated.converged) return null;
+  let first = 0;
+  for (let i = 1; i < n; i++) if (t[i] < t[first]) first = i;
+  const reach = maxReactedA(feed);
+  const map = hand.map;
+  const pFirst = (feed.CA0 - (values[first] - map.offset) / map.slope) / reach;
+  // above the start, and further from the curve than twice the curve's noise scale
+  const z = stated.residuals[first] * Math.sign(map.slope) * Math.sqrt(weights ? weights[first] : 1) / stated.residualStdDev;
+  if (!(pFirst < 0) || !(z > zMin)) return null;
+  void sd;
+  const onB = measurement.kind === "concentrationB" || (measurement.kind === "absorbance" && measurement.species === "B");
+  const trial = (f: number) => {
+    const fe = onB ? { ...feed, CB0: feed.CB0 * f } : { ...feed, CA0: feed.CA0 * f };
+    const m = measurementMap(measurement, fe);
+    return fitNonlinear({ law, feed: fe, t, values, map: m, weights }, stated.k);
+  };
+  // golden-section search on ln f in [ln(1/1.6), ln 1.6]
+  const phi = (Math.sqrt(5) - 1) / 2;
+  let a = -Math.log(1.6);
+  let b = Math.log(1.6);
+  let c = b - phi * (b - a);
+  let d = a + phi * (b - a);
+  let fc = trial(Math.exp(c)).sse;
+  let fd = trial(Math.exp(d)).sse;
+  for (let it = 0; it < 40 && b - a > 1e-4; it++) {
+    if (fc < fd) {
+      b = d;
+      d = c;
+      fd = fc;
+      c = b - phi * (b - a);
+      fc = trial(Math.exp(c)).sse;
+    } else {
+      a = c;
+      c = d;
+      fc = fd;
+      d = a + phi * (b - a);
+      fd = trial(Math.exp(d)).sse;
+    }
+  }
+  const factor = Math.exp((a + b) / 2);
+  const best = trial(factor);
+  const dof = stated.dof - 1;
+  const F = ((stated.sse - best.sse) * dof) / best.sse;
+  if (!(F > jStat.centralF.inv(1 - FEED_VALUE_P, 1, dof)) || Math.abs(factor - 1) < 0.02) return null;
+  const u = request.units.concentration;
+  const name = onB ? "CB0" : "CA0";
+  const given = onB ? request.feed.CB0! : request.feed.CA0;
+  return {
+    factor,
+    rows: [first],
+    message: `The readings start above what the stated feed allows and fit best with ${name} = ${formatNumber(given * factor)} ${u}, ${formatFactor(factor)} times the stated ${formatNumber(given)} ${u} (F = ${F.toPrecision(3)}, p < ${FEED_VALUE_P}): ${likelyCause(factor, u)}`,
+  };
+}
+
 /** -dCA/dt = k CA..., as text. */
 function rateLawText(law: RateLaw): string {
   switch (law) {
@@ -379,12 +504,12 @@ function typicalScale(expected: ArrayLike<number>, kind: string): number {
   return top;
 }
 
-function refitCurve(law: RateLaw, data: RunData, hand: LawFit, weights: Float64Array): NonlinearFit {
+function refitCurve(law: RateLaw, data: RunData, hand: LawFit, weights: Float64Array, kGuess = hand.nonlinear.k): NonlinearFit {
   const { feed, measurement, t, values } = data;
   if (measurement.kind === "signal" && measurement.Sinf === undefined) {
-    return fitNonlinear({ law, feed, t, values, S0: measurement.S0, weights }, hand.nonlinear.k);
+    return fitNonlinear({ law, feed, t, values, S0: measurement.S0, weights }, kGuess);
   }
-  return fitNonlinear({ law, feed, t, values, map: hand.map, weights }, hand.nonlinear.k);
+  return fitNonlinear({ law, feed, t, values, map: hand.map, weights }, kGuess);
 }
 
 function curveAt(law: RateLaw, data: RunData, curve: NonlinearFit, map: AffineMap, t0: number, t0Free: boolean, weights?: ArrayLike<number>) {
@@ -412,6 +537,7 @@ function markingLine(
   curve: NonlinearFit,
   t0: number,
   lin: CurveLinearisation | null,
+  sigma: number,
   skip?: ReadonlySet<number>,
 ): MarkingLine | null {
   const { feed, t } = data;
@@ -424,7 +550,7 @@ function markingLine(
     sinf = { span: curve.Sinf!.value - data.measurement.S0, influence: lin.influence.subarray(row * t.length, (row + 1) * t.length) };
     void p;
   }
-  return fitMarkingLine({ law, feed, kind: data.measurement.kind, noise, t, values: data.values, map, throughOrigin, expectedCA, sinf, skip, sigma: curve.residualStdDev });
+  return fitMarkingLine({ law, feed, kind: data.measurement.kind, noise, t, values: data.values, map, throughOrigin, expectedCA, sinf, skip, sigma });
 }
 
 /** sd of each reading under the curve fit's noise scale, the smaller of that and a model-free estimate. */
@@ -495,6 +621,7 @@ function compareLaws(
   order: ArrayLike<number>,
   throughOrigin: boolean,
   exact: boolean,
+  startRange = 0,
 ): OrderComparison {
   const n = data.t.length;
   const stride = Math.ceil(n / COMPARISON_POINTS);
@@ -509,7 +636,13 @@ function compareLaws(
     const law = isRequested ? requested : c.law;
     const equivalent = group.filter((l) => l !== law);
     const reuse = isRequested && !rows;
-    const f = reuse ? requestedFit : otherLaw(law, sample, sampleWeights, isRequested ? requestedFit.k : halfLifeSeed(requested, law, data.feed, requestedFit.k), throughOrigin);
+    const seed = isRequested ? requestedFit.k : halfLifeSeed(requested, law, data.feed, requestedFit.k);
+    const sinfFitted = data.measurement.kind === "signal" && data.measurement.Sinf === undefined;
+    const f = reuse
+      ? requestedFit
+      : startRange > 0 && seed !== undefined
+        ? searchStartOffset(law, sample, sinfFitted ? undefined : measurementMap(data.measurement, data.feed), sampleWeights, seed, startRange).fit
+        : otherLaw(law, sample, sampleWeights, seed, throughOrigin);
     let raw = 0;
     for (const r of f.residuals) raw += r * r;
     fits.push({
@@ -550,8 +683,8 @@ function halfLifeSeed(requested: RateLaw, other: RateLaw, feed: RunData["feed"],
 function otherLaw(law: RateLaw, data: RunData, weights: ArrayLike<number> | undefined, kGuess: number | undefined, throughOrigin: boolean): NonlinearFit {
   const { feed, measurement, t, values } = data;
   if (kGuess === undefined) return fitLaw(law, data, throughOrigin, true, weights).nonlinear;
-  if (measurement.kind === "signal" && measurement.Sinf === undefined) return fitNonlinear({ law, feed, t, values, S0: measurement.S0, weights }, kGuess, 0.03);
-  return fitNonlinear({ law, feed, t, values, map: measurementMap(measurement, feed), weights }, kGuess, 0.03);
+  if (measurement.kind === "signal" && measurement.Sinf === undefined) return fitNonlinear({ law, feed, t, values, S0: measurement.S0, weights }, kGuess, COMPARISON_TOLERANCE);
+  return fitNonlinear({ law, feed, t, values, map: measurementMap(measurement, feed), weights }, kGuess, COMPARISON_TOLERANCE);
 }
 
 function sampleRows(n: number, stride: number): number[] {

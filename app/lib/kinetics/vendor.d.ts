@@ -18,3 +18,12 @@ declare module "jstat" {
   const jStat: JStat;
   export default jStat;
 }
+
+// ml-regression ships no types; only its multivariate linear regression is used, by a test.
+declare module "ml-regression" {
+  export class MultivariateLinearRegression {
+    constructor(x: number[][], y: number[][], options?: { intercept?: boolean; statistics?: boolean });
+    weights: number[][];
+    stdErrors: number[];
+  }
+}
