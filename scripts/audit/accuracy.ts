@@ -4,7 +4,9 @@
 // marking estimator (the unweighted line) and the curve fit; then the flag rates.
 // Usage: npx tsx scripts/audit/accuracy.ts [runs per scenario, default 1000] [filter text]
 
-import { auditGrid, exactFlags, prepare, simulate, type Tally } from "./simulate.ts";
+import { auditGrid, exactFlags, issueCases, prepare, simulate, type Tally } from "./simulate.ts";
+import { runFit } from "../../app/lib/kinetics/index.ts";
+import { normalSource } from "../../app/lib/kinetics/synthetic.ts";
 
 const reps = Number(process.argv[2] ?? 1000);
 const filter = process.argv[3] ?? "";
@@ -19,6 +21,8 @@ let worstOutside = 0;
 let coverageLow = 1;
 let coverageHigh = 0;
 let exactProblems = 0;
+// per measurement kind and noise model: runs, outside, covered, worst scenario outside, coverage range, worst flag rate
+const groups = new Map<string, { runs: number; outside: number; covered: number; worst: number; low: number; high: number; lineOutside: number; lineCovered: number; flagWorst: number }>();
 const t0 = performance.now();
 auditGrid().forEach((s, index) => {
   if (filter && !s.name.includes(filter)) return;
@@ -34,6 +38,18 @@ auditGrid().forEach((s, index) => {
   worstOutside = Math.max(worstOutside, t.markOutside20 / t.runs);
   coverageLow = Math.min(coverageLow, t.markCovered / t.runs);
   coverageHigh = Math.max(coverageHigh, t.markCovered / t.runs);
+  const key = `${s.kind}, ${s.noise}`;
+  const g = groups.get(key) ?? { runs: 0, outside: 0, covered: 0, worst: 0, low: 1, high: 0, lineOutside: 0, lineCovered: 0, flagWorst: 0 };
+  g.runs += t.runs;
+  g.outside += t.markOutside20;
+  g.covered += t.markCovered;
+  g.lineOutside += t.lineOutside20;
+  g.lineCovered += t.lineCovered;
+  g.worst = Math.max(g.worst, t.markOutside20 / t.runs);
+  g.low = Math.min(g.low, t.markCovered / t.runs);
+  g.high = Math.max(g.high, t.markCovered / t.runs);
+  for (const [code, c] of Object.entries(t.flags)) if (code !== "straight-line-bias") g.flagWorst = Math.max(g.flagWorst, c / t.runs);
+  groups.set(key, g);
   const flags = Object.entries(t.flags)
     .map(([c, v]) => `${c} ${v}`)
     .join(", ");
@@ -59,3 +75,48 @@ console.log(
     .map(([c, v]) => `${c} ${pct(v, totals.runs).trim()} %`)
     .join(", ") || "none"}; exact data sets with a flag: ${exactProblems}`,
 );
+
+console.log("\nby measured quantity and noise model (marking k; old = unweighted line):");
+console.log("| quantity, noise | runs | outside +-20 % (worst scenario) | 95 % coverage (scenario range) | old outside | old coverage | worst flag rate (any flag but straight-line-bias) |");
+console.log("|---|---|---|---|---|---|---|");
+for (const [key, g] of groups) {
+  console.log(
+    `| ${key} | ${g.runs} | ${pct(g.outside, g.runs).trim()} % (${(100 * g.worst).toFixed(1)} %) | ${pct(g.covered, g.runs).trim()} % (${(100 * g.low).toFixed(1)}-${(100 * g.high).toFixed(1)} %) | ${pct(g.lineOutside, g.runs).trim()} % | ${pct(g.lineCovered, g.runs).trim()} % | ${(100 * g.flagWorst).toFixed(1)} % |`,
+  );
+}
+
+console.log("\nthe cases the earlier audit quoted (absolute noise, 20 readings):");
+console.log("| case | unweighted line outside +-20 % | its 95 % coverage | marking k outside | its coverage | curve fit outside | kSource |");
+console.log("|---|---|---|---|---|---|---|");
+issueCases().forEach((s, index) => {
+  if (filter && !s.name.includes(filter)) return;
+  const p = prepare(s);
+  const t = simulate(p, reps, 5000 + index);
+  const source = s.kind === "signal-Sinf-fitted" ? "curve" : "weighted-line";
+  console.log(`| ${s.name} | ${pct(t.lineOutside20, t.runs).trim()} % | ${pct(t.lineCovered, t.runs).trim()} % | ${pct(t.markOutside20, t.runs).trim()} % | ${pct(t.markCovered, t.runs).trim()} % | ${pct(t.curveOutside20, t.runs).trim()} % | ${source} |`);
+});
+
+// The order comparison where the earlier audit found it wrong 25 % of the time: 50 % conversion,
+// 5 % noise; and the right law at 95 % conversion, 1 % noise.
+console.log("\norder comparison verdicts (runs of the right law asked for):");
+console.log("| data | requested | cannot-tell | other (order-mismatch) |");
+console.log("|---|---|---|---|");
+for (const [sys, conversion, noisePct] of [
+  ["A+B unequal", 0.5, 0.05],
+  ["2nd order A", 0.5, 0.05],
+  ["1st order", 0.5, 0.05],
+  ["A+B stoich", 0.5, 0.05],
+  ["A+B unequal", 0.95, 0.01],
+  ["2nd order A", 0.95, 0.01],
+  ["1st order", 0.95, 0.01],
+] as const) {
+  const base = auditGrid().find((s) => s.name.startsWith(`${sys}, concentrationA, absolute`))!;
+  const p = prepare({ ...base, conversion, noisePct });
+  const normal = normalSource(321);
+  const verdicts = { requested: 0, "cannot-tell": 0, other: 0 };
+  for (let rep = 0; rep < reps; rep++) {
+    const r = runFit({ ...p.base, points: p.times.map((t, i) => [t, p.exact[i] + p.sd[i] * normal()]) });
+    verdicts[r.orderComparison!.verdict]++;
+  }
+  console.log(`| ${sys}, ${conversion * 100} % conversion, ${noisePct * 100} % noise | ${pct(verdicts.requested, reps).trim()} % | ${pct(verdicts["cannot-tell"], reps).trim()} % | ${pct(verdicts.other, reps).trim()} % |`);
+}

@@ -230,3 +230,22 @@ export function auditGrid(points = 20): Scenario[] {
   }
   return out;
 }
+
+/** The cases an earlier independent audit quoted (issue figures), to set the old figures beside new ones. */
+export function issueCases(points = 20): Scenario[] {
+  const ab = { law: "second-order-AB" as RateLaw, nu: 1, CA0: 0.02, CB0: 0.02, k: 0.11 };
+  const b2 = { law: "second-order-AB" as RateLaw, nu: 2, CA0: 0.02, CB0: 0.03, k: 0.11 };
+  const a2 = { law: "second-order-A" as RateLaw, nu: 1, CA0: 0.02, CB0: 0.05, k: 0.11 };
+  const c = (name: string, sys: typeof ab, kind: SimKind, noisePct: number, conversion: number): Scenario => ({ name, ...sys, kind, noise: "absolute", noisePct, conversion, points });
+  return [
+    c("A+B stoichiometric, 99 %, 0.5 %", ab, "concentrationA", 0.005, 0.99),
+    c("second order in A, 95 %, 2 %", a2, "concentrationA", 0.02, 0.95),
+    c("conductivity, Sinf known, 97 %, 1 %", ab, "signal", 0.01, 0.97),
+    c("A+B stoichiometric, 95 %, 1 %", ab, "concentrationA", 0.01, 0.95),
+    c("B limiting (A+2B), 97 % of B, 1 %", b2, "concentrationA", 0.01, 0.97),
+    c("B limiting (A+2B), 99 % of B, 1 %", b2, "concentrationA", 0.01, 0.99),
+    c("conductivity, Sinf fitted, 80 %, 1 %", ab, "signal-Sinf-fitted", 0.01, 0.8),
+    c("conductivity, Sinf fitted, 95 %, 1 %", ab, "signal-Sinf-fitted", 0.01, 0.95),
+    c("conductivity, Sinf fitted, 99 %, 1 %", ab, "signal-Sinf-fitted", 0.01, 0.99),
+  ];
+}

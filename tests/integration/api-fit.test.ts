@@ -38,6 +38,20 @@ describe("POST /api/fit", () => {
     expect(body.n).toBe(points.length);
   });
 
+  test("a pooled Arrhenius request gets Ea and A with intervals; a bad one gets its paths", async () => {
+    const cookie = await demoCookie("instructor");
+    // exact k from k(25 C) = 0.112 L/(mol s), Ea = 48.37 kJ/mol (shared/reference/kinetics-literature.md)
+    const benches = [15, 25, 35].map((c) => ({ temperatureC: c, k: 0.112 * Math.exp((-48370 / 8.314462618) * (1 / (c + 273.15) - 1 / 298.15)) }));
+    const res = await call(fitAction, post(JSON.stringify({ arrhenius: { benches } }), cookie));
+    expect(res.status).toBe(200);
+    const body = await res.json();
+    expect(body.EaKJ).toBeCloseTo(48.37, 8);
+    expect(body.weighting).toBe("equal");
+    const bad = await call(fitAction, post(JSON.stringify({ arrhenius: { benches: benches.slice(0, 2) } }), cookie));
+    expect(bad.status).toBe(400);
+    expect((await bad.json()).errors[0].path).toBe("arrhenius.benches");
+  });
+
   test("bad JSON and invalid requests get 400 with every problem and its place", async () => {
     const cookie = await demoCookie("instructor");
     const notJson = await call(fitAction, post("{ nope", cookie));

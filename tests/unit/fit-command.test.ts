@@ -64,6 +64,24 @@ describe("npm run fit (scripts/fit.ts)", () => {
     for (const e of errors) expect(e.message.length).toBeGreaterThan(5);
   }, 60000);
 
+  it("fits a pooled Arrhenius request: Ea and A with intervals, residuals per bench", () => {
+    // benches made from k(25 C) = 0.112 L/(mol s), Ea = 48.37 kJ/mol (Tsujikawa and Inoue 1966,
+    // see shared/reference/kinetics-literature.md), each k off by a seeded 2 % with SE 2 %
+    const normal = normalSource(21);
+    const benches = [15, 20, 25, 30, 35].map((c, i) => {
+      const k = 0.112 * Math.exp((-48370 / 8.314462618) * (1 / (c + 273.15) - 1 / 298.15)) * Math.exp(0.02 * normal());
+      return { id: `B${i + 1}`, temperatureC: c, k, kStdErr: 0.02 * k };
+    });
+    const { status, out } = runCommand(JSON.stringify({ arrhenius: { benches } }));
+    expect(status).toBe(0);
+    const r = JSON.parse(out);
+    expect(r.weighting).toBe("k-uncertainty");
+    expect(r.EaKJCI95[0]).toBeLessThan(48.37);
+    expect(r.EaKJCI95[1]).toBeGreaterThan(48.37);
+    expect(r.benches.map((b: { id: string }) => b.id)).toEqual(["B1", "B2", "B3", "B4", "B5"]);
+    expect(r.ACI95).toHaveLength(2);
+  }, 60000);
+
   it("exits 2 for text that is not JSON", () => {
     const { status, out } = runCommand("{ not json");
     expect(status).toBe(2);

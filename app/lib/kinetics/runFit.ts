@@ -251,7 +251,7 @@ export function runFit(request: FitRequest): FitResult {
   // with relative noise chosen, also the unweighted view: a wrong feed misleads the choice
   const feedFound =
     feedFinding ??
-    (sinfFitted ? null : impliedFeed(law, data, hand, fixedCurve, weights, sd, request, 2) ?? (weights ? impliedFeed(law, data, hand, hand.nonlinear, undefined, sd, request, 3) : null));
+    (sinfFitted ? null : impliedFeed(law, data, hand, fixedCurve, weights, sd, request, 2) ?? (weights ? impliedFeed(law, data, hand, hand.nonlinear, undefined, sd, request, 3, true) : null));
   if (feedFound) flags.push({ code: "feed-mismatch", message: feedFound.message, rows: feedFound.rows, factor: feedFound.factor });
 
   // readings past the long-time limit: left out of the lines; flagged when beyond noise
@@ -423,6 +423,7 @@ function impliedFeed(
   sd: ArrayLike<number>,
   request: FitRequest,
   zMin: number,
+  relativeCheck = false,
 ) {
   const { feed, measurement, t, values } = data;
   const n = t.length;
@@ -470,6 +471,18 @@ function impliedFeed(
   const dof = stated.dof - 1;
   const F = ((stated.sse - best.sse) * dof) / best.sse;
   if (!(F > jStat.centralF.inv(1 - FEED_VALUE_P, 1, dof)) || Math.abs(factor - 1) < 0.02) return null;
+  // the unweighted view of relative noise overstates early misfit: demand more of it
+  if (relativeCheck && (!(F > jStat.centralF.inv(1 - 1e-6, 1, dof)) || Math.abs(factor - 1) < 0.1)) return null;
+  if (!weights && relativeCheck) {
+    // the unweighted view, taken because relative noise was chosen: only when, with the feed
+    // value freed, absolute noise is the likelier model after all (a wrong feed misled the choice)
+    const fe = onB ? { ...feed, CB0: feed.CB0 * factor } : { ...feed, CA0: feed.CA0 * factor };
+    const m = measurementMap(measurement, fe);
+    const expected = expectedValues(best, values);
+    const relFit = fitNonlinear({ law, feed: fe, t, values, map: m, weights: noiseWeights("relative", measurement.kind, expected) }, best.k);
+    const again = chooseNoiseModel("estimate", measurement.kind, expected, best.residuals, { expected: expectedValues(relFit, values), residuals: relFit.residuals });
+    if (again.model !== "absolute") return null;
+  }
   const u = request.units.concentration;
   const name = onB ? "CB0" : "CA0";
   const given = onB ? request.feed.CB0! : request.feed.CA0;
