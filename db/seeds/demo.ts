@@ -3,6 +3,7 @@
 import { Course, CourseMembership, User, sequelize, type CourseRole, type Role } from "../../app/.server/db/models.server";
 import { hashPassword } from "../../app/.server/passwords.server";
 import { recordAudit } from "../../app/.server/audit.server";
+import { seedPlanningDemo } from "./planning-demo";
 
 export interface DemoSignIn {
   /** which demo person this is (named by what they do in the demo course) */
@@ -52,6 +53,7 @@ export async function seedDemo(): Promise<DemoSignIn[]> {
         await CourseMembership.findOrCreate({ where: { courseId: course.id, userId: user.id }, defaults: { courseId: course.id, userId: user.id, role: p.courseRole }, transaction });
       }
     }
+    await seedPlanningDemo(course, transaction, () => hashPassword("demo-student-pass"));
   });
   return DEMO_SIGN_INS;
 }

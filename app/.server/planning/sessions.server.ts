@@ -1,0 +1,351 @@
+// Lab sessions: the designer's schema and checks, saving a session with its benches, who may see
+// what, assigning groups to benches, notifying groups, and auditing changes after notification.
+import { z } from "zod";
+import { parseWithZod } from "@conform-to/zod/v4";
+import { data } from "react-router";
+import type { Transaction } from "sequelize";
+import { Bench, DEFAULT_RUBRIC, LabSession, type Rubric } from "../db/lab-sessions.server";
+import { ReactionSystem } from "../db/reaction-systems.server";
+import { Group, GroupMember } from "../db/groups.server";
+import { Course, User, sequelize, type CourseRole } from "../db/models.server";
+import { requireCourseRole } from "../guards.server";
+import { recordAudit } from "../audit.server";
+import { enqueue } from "../jobs/queue.server";
+import { config } from "../config.server";
+import { benchProblems, predictBench, proposeBenches, sessionProblems, type BenchFeed, type Problem, type ReactionForDesign, type SessionForDesign } from "~/lib/planning/feed-design";
+
+const num = (msg: string) => z.number({ error: msg });
+const int = (msg: string) => z.number({ error: msg }).int({ error: "Use a whole number." });
+
+export const benchSchema = z.object({
+  label: z.string({ error: "Give the bench a label." }).trim().min(1, { error: "Give the bench a label." }).max(20, { error: "Use at most 20 characters." }),
+  CA0: num("Enter CA0 in mol/L.").positive({ error: "CA0 must be above 0 mol/L." }),
+  CB0: num("Enter CB0 in mol/L.").positive({ error: "CB0 must be above 0 mol/L." }),
+  temperatureC: num("Enter the temperature in °C.").min(0, { error: "Use 0 to 100 °C." }).max(100, { error: "Use 0 to 100 °C." }),
+});
+
+const sessionFields = {
+  title: z.string({ error: "Enter a title." }).trim().min(1, { error: "Enter a title." }).max(160, { error: "Use at most 160 characters." }),
+  date: z.string({ error: "Choose the lab day." }).regex(/^\d{4}-\d{2}-\d{2}$/, { error: "Use the date form YYYY-MM-DD." }),
+  reactionSystemId: int("Choose a reaction system.").positive({ error: "Choose a reaction system." }),
+  slotMinutes: int("Enter the slot length in minutes.").positive({ error: "The slot must be longer than 0 minutes." }).max(720, { error: "A slot of more than 12 h is not a lab session." }),
+  setupMinutes: int("Enter the set-up time in minutes.").min(0, { error: "Set-up time cannot be negative." }),
+  reactorVolumeMl: num("Enter the reactor volume in mL.").positive({ error: "The reactor volume must be above 0 mL." }),
+  stockAMolL: num("Enter the stock concentration of A in mol/L.").positive({ error: "The stock of A must be above 0 mol/L." }),
+  stockBMolL: num("Enter the stock concentration of B in mol/L.").positive({ error: "The stock of B must be above 0 mol/L." }),
+  samplingIntervalS: int("Enter the sampling interval in seconds.").positive({ error: "The sampling interval must be longer than 0 s." }),
+  targetConversionPct: num("Enter the target conversion in %.").gt(0, { error: "Use more than 0 %." }).lt(100, { error: "Use less than 100 %." }),
+  deadline: z.string().regex(/^\d{4}-\d{2}-\d{2}T\d{2}:\d{2}/, { error: "Use a date and time." }).optional(),
+  fullWithinPct: num("Enter a percentage.").positive({ error: "Use more than 0 %." }),
+  partialWithinPct: num("Enter a percentage.").positive({ error: "Use more than 0 %." }),
+  partialFraction: num("Enter a fraction from 0 to 1.").min(0, { error: "Use 0 to 1." }).max(1, { error: "Use 0 to 1." }),
+  analysisWeight: num("Enter a weight from 0 to 1.").min(0, { error: "Use 0 to 1." }).max(1, { error: "Use 0 to 1." }),
+  latePenaltyPct: num("Enter a percentage.").min(0, { error: "Use 0 to 100 %." }).max(100, { error: "Use 0 to 100 %." }),
+};
+
+const designFields = {
+  benchCount: int("Enter the number of benches.").min(1, { error: "Use at least 1 bench." }).max(40, { error: "Use at most 40 benches." }),
+  CA0: num("Enter CA0 in mol/L.").positive({ error: "CA0 must be above 0 mol/L." }),
+  ratioMin: num("Enter the smallest feed ratio.").positive({ error: "The feed ratio must be above 0." }),
+  ratioMax: num("Enter the largest feed ratio.").positive({ error: "The feed ratio must be above 0." }),
+  tempMinC: num("Enter the lowest temperature in °C.").min(0, { error: "Use 0 to 100 °C." }).max(100, { error: "Use 0 to 100 °C." }),
+  tempMaxC: num("Enter the highest temperature in °C.").min(0, { error: "Use 0 to 100 °C." }).max(100, { error: "Use 0 to 100 °C." }),
+};
+
+function sessionRules(s: { slotMinutes?: number; setupMinutes?: number; fullWithinPct?: number; partialWithinPct?: number }, ctx: z.RefinementCtx) {
+  if (s.slotMinutes !== undefined && s.setupMinutes !== undefined && s.setupMinutes >= s.slotMinutes) ctx.addIssue({ code: "custom", path: ["setupMinutes"], message: "Set-up must leave time for the run inside the slot." });
+  if (s.fullWithinPct !== undefined && s.partialWithinPct !== undefined && s.partialWithinPct < s.fullWithinPct) ctx.addIssue({ code: "custom", path: ["partialWithinPct"], message: "Partial marks must reach at least as far as full marks." });
+}
+
+/** "propose" needs the session and design fields; "save" needs the session fields and the benches. */
+export const proposeSchema = z.object({ ...sessionFields, ...designFields }).superRefine(sessionRules);
+export const saveSchema = z
+  .object({ ...sessionFields, benches: z.array(benchSchema, { error: "Propose or enter the benches first." }).min(1, { error: "Add at least one bench." }).max(40) })
+  .superRefine(sessionRules);
+
+export type SaveInput = z.output<typeof saveSchema>;
+
+export function parseDesignForm(form: FormData, intent: "propose" | "save") {
+  return parseWithZod(form, { schema: intent === "propose" ? proposeSchema : saveSchema });
+}
+
+export function reactionForDesign(rs: ReactionSystem): ReactionForDesign {
+  return { coeffA: rs.coeffA, coeffB: rs.coeffB, orderA: rs.orderA, orderB: rs.orderB, kRef: rs.kRef, TrefC: rs.TrefC, EaKJ: rs.EaKJ };
+}
+
+export function sessionForDesign(s: { slotMinutes: number; setupMinutes: number; samplingIntervalS: number; reactorVolumeMl: number; stockAMolL: number; stockBMolL: number; targetConversionPct?: number; targetConversion?: number }): SessionForDesign {
+  return {
+    slotMinutes: s.slotMinutes,
+    setupMinutes: s.setupMinutes,
+    samplingIntervalS: s.samplingIntervalS,
+    reactorVolumeMl: s.reactorVolumeMl,
+    stockAMolL: s.stockAMolL,
+    stockBMolL: s.stockBMolL,
+    targetConversion: s.targetConversion ?? (s.targetConversionPct ?? 80) / 100,
+  };
+}
+
+export { proposeBenches, predictBench };
+
+/** Problems that block saving (bad numbers, twins, stocks that overfill the reactor). */
+export function blockingProblems(reaction: ReactionForDesign, session: SessionForDesign, benches: readonly BenchFeed[]): Problem[] {
+  const problems = [...sessionProblems(session), ...benchProblems(benches)];
+  if (problems.length) return problems;
+  benches.forEach((b, i) => {
+    const p = predictBench(reaction, session, b);
+    const over = p.warnings.find((w) => w.code === "volume");
+    if (over) problems.push({ path: `benches[${i}].CA0`, message: `Bench ${b.label}: ${over.message} Use a stronger stock or a lower feed.` });
+  });
+  return problems;
+}
+
+/** A reaction system of this course, or null. */
+export function courseReaction(courseId: number, id: number) {
+  return ReactionSystem.findOne({ where: { id, courseId } });
+}
+
+function rubricOf(input: SaveInput): Rubric {
+  return {
+    fullWithinPct: input.fullWithinPct,
+    partialWithinPct: input.partialWithinPct,
+    partialFraction: input.partialFraction,
+    analysisWeight: input.analysisWeight,
+    experimentWeight: Number((1 - input.analysisWeight).toFixed(6)),
+    latePenaltyPct: input.latePenaltyPct,
+  };
+}
+
+export async function createSession(actor: User, courseId: number, input: SaveInput): Promise<{ ok: true; value: LabSession } | { ok: false; errors: Record<string, string[]> }> {
+  const rs = await courseReaction(courseId, input.reactionSystemId);
+  if (!rs) return { ok: false, errors: { reactionSystemId: ["Choose a reaction system of this course."] } };
+  const problems = blockingProblems(reactionForDesign(rs), sessionForDesign(input), input.benches);
+  if (problems.length) return { ok: false, errors: groupProblems(problems) };
+  const session = await sequelize.transaction(async (transaction) => {
+    const s = await LabSession.create(
+      {
+        courseId,
+        reactionSystemId: rs.id,
+        title: input.title,
+        date: input.date,
+        slotMinutes: input.slotMinutes,
+        setupMinutes: input.setupMinutes,
+        reactorVolumeMl: input.reactorVolumeMl,
+        stockAMolL: input.stockAMolL,
+        stockBMolL: input.stockBMolL,
+        samplingIntervalS: input.samplingIntervalS,
+        targetConversion: input.targetConversionPct / 100,
+        rubric: rubricOf(input),
+        deadline: input.deadline ? new Date(input.deadline) : null,
+        status: "planned",
+      },
+      { transaction },
+    );
+    await Bench.bulkCreate(
+      input.benches.map((b, i) => ({ sessionId: s.id, position: i + 1, label: b.label, CA0: b.CA0, CB0: b.CB0, temperatureC: b.temperatureC, groupId: null })),
+      { transaction },
+    );
+    await recordAudit({ actorId: actor.id, action: "session.created", entityType: "lab_session", entityId: s.id, after: { title: s.title, benches: input.benches.length } }, transaction);
+    return s;
+  });
+  return { ok: true, value: session };
+}
+
+export function groupProblems(problems: Problem[]): Record<string, string[]> {
+  const out: Record<string, string[]> = {};
+  for (const p of problems) (out[p.path || ""] ??= []).push(p.message);
+  return out;
+}
+
+export interface SessionAccess {
+  session: LabSession;
+  reaction: ReactionSystem;
+  course: Course;
+  role: CourseRole;
+  staff: boolean;
+  /** the caller's group in this course, if any */
+  myGroupId: number | null;
+}
+
+/** The session if the caller is a member of its course (404 when it does not exist, 403 for outsiders). */
+export async function sessionAccess(user: User, sessionId: number, api = false): Promise<SessionAccess> {
+  const session = await LabSession.findByPk(sessionId, { include: [{ model: ReactionSystem, as: "reactionSystem" }, { model: Course, as: "course" }] });
+  if (!session) {
+    if (api) throw Response.json({ error: "There is no practical with this id." }, { status: 404 });
+    throw data({ message: "There is no practical at this address." }, { status: 404 });
+  }
+  const role = await requireCourseRole(user, session.courseId, ["instructor", "demonstrator", "student"], api);
+  const membership = await GroupMember.findOne({ where: { userId: user.id, courseId: session.courseId } });
+  return {
+    session,
+    reaction: session.reactionSystem!,
+    course: (session as unknown as { course: Course }).course,
+    role,
+    staff: role !== "student",
+    myGroupId: membership?.groupId ?? null,
+  };
+}
+
+export function benchesOf(sessionId: number) {
+  return Bench.findAll({ where: { sessionId }, include: [{ model: Group, as: "group" }], order: [["position", "ASC"]] });
+}
+
+/** The session as the JSON API and the pages show it: staff get the reference, students only their own bench. */
+export async function sessionView(access: SessionAccess) {
+  const { session, reaction, staff } = access;
+  const all = await benchesOf(session.id);
+  const benches = staff ? all : all.filter((b) => b.groupId !== null && b.groupId === access.myGroupId);
+  const rd = reactionForDesign(reaction);
+  const sd = sessionForDesign(session);
+  return {
+    id: session.id,
+    courseId: session.courseId,
+    title: session.title,
+    date: session.date,
+    status: session.status,
+    slotMinutes: session.slotMinutes,
+    setupMinutes: session.setupMinutes,
+    samplingIntervalS: session.samplingIntervalS,
+    reactorVolumeMl: session.reactorVolumeMl,
+    stockAMolL: session.stockAMolL,
+    stockBMolL: session.stockBMolL,
+    deadline: session.deadline ? session.deadline.toISOString() : null,
+    notifiedAt: session.notifiedAt ? session.notifiedAt.toISOString() : null,
+    reaction: {
+      name: reaction.name,
+      speciesA: reaction.speciesA,
+      speciesB: reaction.speciesB,
+      a: reaction.coeffA,
+      b: reaction.coeffB,
+      orderA: reaction.orderA,
+      orderB: reaction.orderB,
+      measured: reaction.measured,
+      ...(staff ? { reference: { k: reaction.kRef, TrefC: reaction.TrefC, EaKJ: reaction.EaKJ, source: reaction.referenceSource } } : {}),
+    },
+    benches: benches.map((b) => {
+      const p = predictBench(rd, sd, b);
+      return {
+        id: b.id,
+        label: b.label,
+        CA0: b.CA0,
+        CB0: b.CB0,
+        temperatureC: b.temperatureC,
+        groupId: b.groupId,
+        groupName: b.group?.name ?? null,
+        predicted: { minutesToTarget: Number.isFinite(p.minutesToTarget) ? p.minutesToTarget : null, targetConversion: session.targetConversion },
+        ...(staff ? { reference: { kAtT: p.kAtT }, warnings: p.warnings } : {}),
+      };
+    }),
+    ...(staff ? { rubric: session.rubric } : {}),
+  };
+}
+
+export type SessionView = Awaited<ReturnType<typeof sessionView>>;
+
+/** Sessions of a course for its members (no reference values in the list for anyone). */
+export async function courseSessions(courseId: number) {
+  const sessions = await LabSession.findAll({ where: { courseId }, order: [["date", "ASC"], ["id", "ASC"]] });
+  const counts = await Bench.count({ where: { sessionId: sessions.map((s) => s.id) }, group: ["sessionId"] });
+  const byId = new Map((counts as unknown as Array<{ sessionId: number; count: number }>).map((c) => [c.sessionId, Number(c.count)]));
+  return sessions.map((s) => ({ id: s.id, title: s.title, date: s.date, slotMinutes: s.slotMinutes, status: s.status, benchCount: byId.get(s.id) ?? 0 }));
+}
+
+/** Every change to a session after its groups were told goes into the audit log. */
+async function auditIfNotified(actor: User, session: LabSession, action: string, before: unknown, after: unknown, transaction: Transaction) {
+  if (!session.notifiedAt) return;
+  await recordAudit({ actorId: actor.id, action, entityType: "lab_session", entityId: session.id, before, after }, transaction);
+}
+
+/** Change one bench's feed or label (instructors); refused when it would break the session's rules. */
+export async function updateBench(actor: User, session: LabSession, reaction: ReactionSystem, benchId: number, input: z.output<typeof benchSchema>) {
+  const benches = await Bench.findAll({ where: { sessionId: session.id }, order: [["position", "ASC"]] });
+  const index = benches.findIndex((b) => b.id === benchId);
+  if (index < 0) return { ok: false as const, errors: { "": ["That bench is not part of this practical."] } };
+  const next = benches.map((b, i) => (i === index ? { ...input } : { label: b.label, CA0: b.CA0, CB0: b.CB0, temperatureC: b.temperatureC }));
+  const problems = blockingProblems(reactionForDesign(reaction), sessionForDesign(session), next).filter((p) => p.path.startsWith(`benches[${index}]`) || !p.path.startsWith("benches"));
+  if (problems.length) return { ok: false as const, errors: { [""]: problems.map((p) => p.message) } };
+  const bench = benches[index];
+  const before = { label: bench.label, CA0: bench.CA0, CB0: bench.CB0, temperatureC: bench.temperatureC };
+  await sequelize.transaction(async (transaction) => {
+    await bench.update(input, { transaction });
+    await auditIfNotified(actor, session, "session.bench-changed-after-notice", { benchId, ...before }, { benchId, ...input }, transaction);
+  });
+  return { ok: true as const };
+}
+
+/**
+ * Groups to benches. `mapping` gives a group id (or null) per bench id; "auto" fills benches in
+ * order with the groups not yet placed, by name. One group a bench.
+ */
+export async function assignGroups(actor: User, session: LabSession, mode: "auto" | "manual", mapping: Record<number, number | null> = {}) {
+  const benches = await Bench.findAll({ where: { sessionId: session.id }, order: [["position", "ASC"]] });
+  const groups = await Group.findAll({ where: { courseId: session.courseId }, order: [["name", "ASC"]] });
+  const groupIds = new Set(groups.map((g) => g.id));
+  const target = new Map<number, number | null>(benches.map((b) => [b.id, b.groupId]));
+  if (mode === "manual") {
+    for (const [benchId, groupId] of Object.entries(mapping)) {
+      if (!target.has(Number(benchId))) return { ok: false as const, message: `Bench ${benchId} is not part of this practical.` };
+      if (groupId !== null && !groupIds.has(groupId)) return { ok: false as const, message: "One of the chosen groups is not in this course." };
+      target.set(Number(benchId), groupId);
+    }
+  } else {
+    const placed = new Set([...target.values()].filter((g): g is number => g !== null));
+    const free = groups.filter((g) => !placed.has(g.id));
+    for (const b of benches) if (target.get(b.id) === null && free.length) target.set(b.id, free.shift()!.id);
+  }
+  const used = new Map<number, string>();
+  for (const b of benches) {
+    const g = target.get(b.id);
+    if (g === null || g === undefined) continue;
+    if (used.has(g)) {
+      const name = groups.find((x) => x.id === g)!.name;
+      return { ok: false as const, message: `${name} is at bench ${used.get(g)} and bench ${b.label}; give each group one bench.` };
+    }
+    used.set(g, b.label);
+  }
+  const before = Object.fromEntries(benches.map((b) => [b.label, b.groupId]));
+  const after = Object.fromEntries(benches.map((b) => [b.label, target.get(b.id) ?? null]));
+  await sequelize.transaction(async (transaction) => {
+    // clear first, so swapping two groups does not trip the one-bench-per-group index
+    await Bench.update({ groupId: null }, { where: { sessionId: session.id }, transaction });
+    for (const b of benches) {
+      const g = target.get(b.id) ?? null;
+      if (g !== null) await Bench.update({ groupId: g }, { where: { id: b.id }, transaction });
+    }
+    await auditIfNotified(actor, session, "session.groups-changed-after-notice", before, after, transaction);
+  });
+  return { ok: true as const, placed: used.size, unplaced: groups.length - used.size };
+}
+
+/** E-mails every member of every assigned group the link to their bench sheet (through the job queue). */
+export async function notifyGroups(actor: User, session: LabSession) {
+  const benches = await Bench.findAll({ where: { sessionId: session.id }, order: [["position", "ASC"]] });
+  const assigned = benches.filter((b) => b.groupId !== null);
+  if (!assigned.length) return { ok: false as const, message: "Assign groups to benches first: no group has a bench yet." };
+  const members = await GroupMember.findAll({ where: { groupId: assigned.map((b) => b.groupId!) }, include: [{ model: User, as: "user" }, { model: Group, as: "group" }] });
+  let sent = 0;
+  await sequelize.transaction(async (transaction) => {
+    for (const m of members) {
+      const bench = assigned.find((b) => b.groupId === m.groupId)!;
+      const deadline = session.deadline ? `Upload your readings by ${session.deadline.toISOString().slice(0, 16).replace("T", " ")} UTC.\n` : "";
+      await enqueue(
+        "send-mail",
+        {
+          to: m.user!.email,
+          subject: `Your bench for ${session.title} on ${session.date}: bench ${bench.label}`,
+          text:
+            `Hello ${m.user!.displayName},\n\nYour group ${m.group!.name} works at bench ${bench.label} in ${session.title} on ${session.date}.\n` +
+            `Your bench sheet (feed, temperature, volumes to mix, sampling plan and hazard cautions):\n\n` +
+            `${config.appUrl}/sessions/${session.id}/benches/${bench.id}/sheet\n\n${deadline}`,
+        },
+        { transaction },
+      );
+      sent++;
+    }
+    const before = { status: session.status, notifiedAt: session.notifiedAt };
+    await session.update({ status: "notified", notifiedAt: new Date() }, { transaction });
+    await recordAudit({ actorId: actor.id, action: "session.groups-notified", entityType: "lab_session", entityId: session.id, before, after: { status: "notified", mails: sent } }, transaction);
+  });
+  return { ok: true as const, sent };
+}
+
+export { DEFAULT_RUBRIC };
