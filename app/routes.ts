@@ -21,6 +21,19 @@ export default [
     ...prefix("courses", [
       route("new", "routes/courses/new.tsx"),
       route(":courseId", "routes/courses/course.tsx"),
+      ...prefix(":courseId", [
+        route("roster", "routes/courses/roster.tsx"),
+        route("groups", "routes/courses/groups.tsx"),
+        route("reactions", "routes/courses/reactions.tsx"),
+        route("sessions/new", "routes/courses/session-new.tsx"),
+      ]),
+    ]),
+    // Practicals: the plan, printable bench sheets and the prep list.
+    route("sessions/:sessionId", "routes/sessions/session.tsx"),
+    ...prefix("sessions/:sessionId", [
+      route("sheets", "routes/sessions/sheets.tsx"),
+      route("benches/:benchId/sheet", "routes/sessions/bench-sheet.tsx"),
+      route("prep", "routes/sessions/prep.tsx"),
     ]),
     route("fit-check", "routes/tools/fit-check.tsx"),
     ...prefix("admin", [
@@ -38,6 +51,9 @@ export default [
     route("openapi.json", "routes/api/openapi.ts"),
     route("tokens", "routes/api/tokens.ts"),
     route("tokens/:tokenId", "routes/api/token.ts"),
+    route("courses/:courseId/sessions", "routes/api/course-sessions.ts"),
+    route("sessions/:sessionId", "routes/api/session.ts"),
+    route("feed-check", "routes/api/feed-check.ts"),
   ]),
 
   route("*", "routes/not-found.tsx"),

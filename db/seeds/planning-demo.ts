@@ -67,7 +67,7 @@ export async function seedPlanningDemo(course: Course, transaction: Transaction,
   for (const [i, n] of MORE_STUDENTS.entries()) {
     const email = `student${i + 10}@demo.ratebook.invalid`;
     let user = await User.findOne({ where: { email }, transaction });
-    user ??= await User.create({ email, displayName: `${n} (demo student)`, role: "student", passwordHash: await hash() }, { transaction });
+    user ??= await User.create({ email, displayName: `${n} (demo student)`, role: "member", passwordHash: await hash() }, { transaction });
     await CourseMembership.findOrCreate({ where: { courseId: course.id, userId: user.id }, defaults: { courseId: course.id, userId: user.id, role: "student" }, transaction });
   }
   const students = await CourseMembership.findAll({ where: { courseId: course.id, role: "student" }, include: [{ model: User, as: "user" }], order: [["id", "ASC"]], transaction });
@@ -89,7 +89,7 @@ export async function seedPlanningDemo(course: Course, transaction: Transaction,
   if (await LabSession.findOne({ where: { courseId: course.id, title: DEMO_SESSION_TITLE }, transaction })) return;
   const rs = await ReactionSystem.findOne({ where: { courseId: course.id, name: DEMO_REACTIONS[0].name }, transaction });
   const reaction: ReactionForDesign = { coeffA: rs!.coeffA, coeffB: rs!.coeffB, orderA: rs!.orderA, orderB: rs!.orderB, kRef: rs!.kRef, TrefC: rs!.TrefC, EaKJ: rs!.EaKJ };
-  const design = proposeBenches(reaction, { benchCount: 8, CA0: 0.02, ratioMin: 0.5, ratioMax: 2, tempMinC: 20, tempMaxC: 35 });
+  const design = proposeBenches(reaction, { benchCount: 8, CA0: 0.01, ratioMin: 0.5, ratioMax: 2, tempMinC: 20, tempMaxC: 35 });
   if (!design.ok) throw new Error(`demo design failed: ${design.problems[0].message}`);
   const session = await LabSession.create(
     {
@@ -102,7 +102,7 @@ export async function seedPlanningDemo(course: Course, transaction: Transaction,
       reactorVolumeMl: 250,
       stockAMolL: 0.1,
       stockBMolL: 0.1,
-      samplingIntervalS: 120,
+      samplingIntervalS: 60,
       targetConversion: 0.8,
       rubric: DEFAULT_RUBRIC,
       deadline: new Date("2027-02-17T17:00:00Z"),

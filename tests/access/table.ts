@@ -4,6 +4,8 @@
 // How to add a route: see DEVELOPERS.md ("Access table").
 import { Course, CourseMembership, User } from "~/.server/db/models.server";
 import { hashPassword } from "~/.server/passwords.server";
+import { Bench, LabSession } from "~/.server/db/lab-sessions.server";
+import { GroupMember } from "~/.server/db/groups.server";
 
 export const VISITORS = ["signedOut", "admin", "instructor", "demonstrator", "student", "otherStudent"] as const;
 export type Visitor = (typeof VISITORS)[number];
@@ -55,6 +57,15 @@ export const ACCESS: Record<string, RouteAccess> = {
     post: [302, 400, 400, 403, 403, 403],
     screens: ["admin", "instructor", "demonstrator", "student"],
   },
+  "routes/courses/roster.tsx": { url: "/courses/{course}/roster", get: [302, 200, 200, 403, 403, 403], post: [302, 400, 400, 403, 403, 403], screens: ["instructor"] },
+  "routes/courses/groups.tsx": { url: "/courses/{course}/groups", get: [302, 200, 200, 200, 403, 403], post: [302, 400, 400, 403, 403, 403], screens: ["instructor", "demonstrator"] },
+  "routes/courses/reactions.tsx": { url: "/courses/{course}/reactions", get: [302, 200, 200, 200, 403, 403], post: [302, 400, 400, 403, 403, 403], screens: ["instructor"] },
+  "routes/courses/session-new.tsx": { url: "/courses/{course}/sessions/new", get: [302, 200, 200, 403, 403, 403], post: [302, 400, 400, 403, 403, 403], screens: ["instructor"] },
+  "routes/sessions/session.tsx": { url: "/sessions/{session}", get: [302, 200, 200, 200, 200, 403], post: [302, 400, 400, 403, 403, 403], screens: ["instructor", "demonstrator", "student"] },
+  "routes/sessions/sheets.tsx": { url: "/sessions/{session}/sheets", get: [302, 200, 200, 200, 403, 403], post: NO_ACTION_PAGE, screens: ["instructor"] },
+  // the demo student's own bench; another group's bench is a 404 for them (tests/integration/planning-access.test.ts)
+  "routes/sessions/bench-sheet.tsx": { url: "/sessions/{session}/benches/{bench}/sheet", get: [302, 200, 200, 200, 200, 403], post: NO_ACTION_PAGE, screens: ["student"] },
+  "routes/sessions/prep.tsx": { url: "/sessions/{session}/prep", get: [302, 200, 200, 200, 403, 403], post: NO_ACTION_PAGE, screens: ["instructor"] },
   "routes/tools/fit-check.tsx": { url: "/fit-check", get: [302, 200, 200, 200, 403, 403], post: NO_ACTION_PAGE, screens: ["instructor", "demonstrator"] },
   "routes/admin/people.tsx": { url: "/admin/people", get: ADMIN_ONLY, post: [302, 400, 403, 403, 403, 403], screens: ["admin"] },
   "routes/admin/mail.tsx": { url: "/admin/mail", get: ADMIN_ONLY, post: NO_ACTION_PAGE, screens: ["admin"] },
@@ -68,6 +79,10 @@ export const ACCESS: Record<string, RouteAccess> = {
   "routes/api/tokens.ts": { url: "/api/tokens", get: API_NO_METHOD, post: [401, 400, 400, 400, 400, 400] },
   // Only DELETE revokes; an unknown id would be 404.
   "routes/api/token.ts": { url: "/api/tokens/999999", get: API_NO_METHOD, post: [401, 405, 405, 405, 405, 405] },
+
+  "routes/api/course-sessions.ts": { url: "/api/courses/{course}/sessions", get: [401, 200, 200, 200, 200, 403], post: API_NO_METHOD },
+  "routes/api/session.ts": { url: "/api/sessions/{session}", get: [401, 200, 200, 200, 200, 403], post: API_NO_METHOD },
+  "routes/api/feed-check.ts": { url: "/api/feed-check", get: API_NO_METHOD, post: [401, 400, 400, 400, 403, 403] },
 
   "routes/not-found.tsx": { url: "/no-such-page", get: [404, 404, 404, 404, 404, 404], post: NO_ACTION_PAGE, screens: ["signedOut", "student"] },
 };
@@ -92,7 +107,11 @@ export async function makeFixtures(): Promise<Record<string, string>> {
   let student = await User.findOne({ where: { email } });
   student ??= await User.create({ email, displayName: "Other-course student (test)", role: "member", passwordHash: await hashPassword(password) });
   await CourseMembership.findOrCreate({ where: { courseId: other.id, userId: student.id }, defaults: { courseId: other.id, userId: student.id, role: "student" } });
-  return { course: String(course!.id), otherCourse: String(other.id), badToken: "not-a-real-token" };
+  const session = await LabSession.findOne({ where: { courseId: course!.id }, order: [["id", "ASC"]] });
+  const demoStudent = await User.findOne({ where: { email: SIGN_INS.student.email } });
+  const group = await GroupMember.findOne({ where: { courseId: course!.id, userId: demoStudent!.id } });
+  const bench = await Bench.findOne({ where: { sessionId: session!.id, groupId: group!.groupId } });
+  return { course: String(course!.id), otherCourse: String(other.id), badToken: "not-a-real-token", session: String(session!.id), bench: String(bench!.id) };
 }
 
 export function fillUrl(url: string, fixtures: Record<string, string>) {

@@ -21,6 +21,11 @@ beforeAll(async () => {
 
 afterAll(() => server?.stop());
 
+/** An example body may name demo ids as "{name}"; they become numbers from the same values. */
+function fillExample(example: unknown, values: Record<string, number | string>): unknown {
+  return JSON.parse(JSON.stringify(example), (_, v) => (typeof v === "string" && /^\{\w+\}$/.test(v) ? Number(values[v.slice(1, -1)]) : v));
+}
+
 function operations() {
   const ops: Array<{ path: string; method: string; op: any }> = [];
   for (const [path, item] of Object.entries<any>(doc.paths)) for (const [method, op] of Object.entries<any>(item)) ops.push({ path, method, op });
@@ -52,7 +57,7 @@ describe("OpenAPI document", () => {
           ...(example ? { "Content-Type": "application/json" } : {}),
           Origin: server.url,
         },
-        body: example ? JSON.stringify(example) : undefined,
+        body: example ? JSON.stringify(fillExample(example, values)) : undefined,
       });
       const who = op["x-test-caller"] ?? "instructor";
       const res = await fetch(server.url + url, init(cookies[who]));

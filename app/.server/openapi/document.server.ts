@@ -4,8 +4,9 @@
 import type { ApiPart } from "./part.server";
 import { corePart } from "./core.server";
 import { tokensPart } from "./tokens.server";
+import { planningPart } from "./planning.server";
 
-const parts: ApiPart[] = [corePart, tokensPart];
+const parts: ApiPart[] = [corePart, tokensPart, planningPart];
 
 export function openApiDocument() {
   const paths: Record<string, Record<string, unknown>> = {};

@@ -1,6 +1,8 @@
 // Groups of a course: who is in which, and the caller's own groups with their benches.
-import { sequelize, type User } from "../db/models.server";
 import { QueryTypes } from "sequelize";
+import { CourseMembership, sequelize, User as UserModel, type User } from "../db/models.server";
+import { Group, GroupMember } from "../db/groups.server";
+import { recordAudit } from "../audit.server";
 
 export interface MyGroup {
   id: number;
@@ -25,9 +27,6 @@ export async function groupsOf(user: Pick<User, "id">): Promise<MyGroup[]> {
 }
 
 // ---- managing groups (instructors) ----
-import { CourseMembership, sequelize } from "../db/models.server";
-import { User as UserModel } from "../db/models.server";
-import { recordAudit } from "../audit.server";
 
 type Result = { ok: true; message: string } | { ok: false; field: string; message: string };
 

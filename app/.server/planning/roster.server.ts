@@ -181,7 +181,7 @@ export async function importRoster(actor: User, courseId: number, rows: RosterRo
         continue;
       }
       let user = await User.findOne({ where: { email: r.email }, transaction });
-      if (!user) user = await User.create({ email: r.email, displayName: r.name, role: "student", passwordHash: null }, { transaction });
+      if (!user) user = await User.create({ email: r.email, displayName: r.name, role: "member", passwordHash: null }, { transaction });
       else if (user.displayName !== r.name) await user.update({ displayName: r.name }, { transaction });
       const [membership, created] = await CourseMembership.findOrCreate({
         where: { courseId, userId: user.id },

@@ -9,6 +9,8 @@ import { formId, pathId } from "~/.server/ids.server";
 import { Button, Field, FormMessage, SelectField } from "~/components/form";
 import { PageTitle, TableBox } from "~/components/page";
 import { RoleSelect } from "~/components/role-select";
+import { courseSessions } from "~/.server/planning/sessions.server";
+import { CoursePlanning } from "~/components/planning/course-planning";
 
 export const meta: Route.MetaFunction = ({ data }) => [{ title: `${data?.course.code ?? "Course"} · Ratebook` }];
 
@@ -38,6 +40,7 @@ export async function loader({ request, params }: Route.LoaderArgs) {
       pending: !m.user!.passwordHash,
       isMe: m.userId === user.id,
     }));
+  const sessions = await courseSessions(course.id);
   return {
     course: { id: course.id, code: course.code, title: course.title, term: course.term, archived: course.archivedAt !== null },
     myRole,
@@ -45,6 +48,7 @@ export async function loader({ request, params }: Route.LoaderArgs) {
     staffView,
     members,
     roles: COURSE_ROLES,
+    sessions,
   };
 }
 
@@ -103,6 +107,7 @@ export default function CoursePage({ loaderData, actionData }: Route.ComponentPr
       </PageTitle>
       {pageNotice ? <FormMessage tone="info">{pageNotice}</FormMessage> : null}
       {pageProblem ? <FormMessage tone="error">{pageProblem}</FormMessage> : null}
+      <CoursePlanning courseId={course.id} role={canManage ? "instructor" : staffView ? "demonstrator" : "student"} sessions={loaderData.sessions} />
       <div className="grid gap-8 lg:grid-cols-[2fr_1fr]">
         <section aria-labelledby="members-h" className="min-w-0">
           <h2 id="members-h" className="mb-3 text-xl font-bold">{staffView ? "People" : "Staff"} ({members.length})</h2>
