@@ -31,7 +31,7 @@ beforeAll(async () => {
   instructor = await demoCookie("instructor");
   student = await demoCookie("student");
   demoSession = (await LabSession.findOne({ where: { courseId: course.id }, order: [["id", "ASC"]] }))!;
-  saponification = (await ReactionSystem.findOne({ where: { courseId: course.id, coeffB: 1 } }))!;
+  saponification = (await ReactionSystem.findOne({ where: { courseId: course.id, name: "Demo ester saponification (invented)" } }))!;
 });
 
 afterAll(() => closeSequelize());

@@ -17,9 +17,22 @@ export async function startWorker(options: { concurrency?: number; pollInterval?
   });
 }
 
-/** Runs every job that is due now (and jobs those add) until none is left. */
+/**
+ * Runs every job that is due now (and jobs those add) until none is left. runOnce can return
+ * while its last job is still being marked done, so wait for locks to clear and go again while
+ * due jobs remain (bounded).
+ */
 export async function runJobsUntilIdle(): Promise<void> {
-  await runOnce({ connectionString: connectionStringOf(getSequelize()), taskList, noHandleSignals: true, logger: quietWorkerLogger });
+  const sequelize = getSequelize();
+  const count = async (where: string) => {
+    const [rows] = await sequelize.query(`select count(*)::int as n from graphile_worker.jobs where ${where}`);
+    return (rows as Array<{ n: number }>)[0].n;
+  };
+  for (let round = 0; round < 20; round++) {
+    await runOnce({ connectionString: connectionStringOf(sequelize), taskList, noHandleSignals: true, logger: quietWorkerLogger });
+    for (let i = 0; i < 100 && (await count("locked_at is not null")) > 0; i++) await new Promise((r) => setTimeout(r, 20));
+    if ((await count("locked_at is null and run_at <= now() and attempts < max_attempts and last_error is null")) === 0) return;
+  }
 }
 
 /** Jobs waiting or failed, for tests and the admin view. */

@@ -30,6 +30,12 @@ function hazardsOf(access: SessionAccess) {
 
 export type Hazards = ReturnType<typeof hazardsOf>;
 
+function planMinutes(expected: number, available: number, intervalS: number) {
+  if (!Number.isFinite(expected)) return available;
+  const wanted = Math.max(1.5 * expected, (8 * intervalS) / 60);
+  return Math.min(available, Math.ceil(wanted / 5) * 5);
+}
+
 function sheetFor(access: SessionAccess, bench: Bench & { group?: Group | null }) {
   const { session, reaction } = access;
   const volumes = mixingVolumes(bench, session);
@@ -44,7 +50,9 @@ function sheetFor(access: SessionAccess, bench: Bench & { group?: Group | null }
     temperatureC: bench.temperatureC,
     volumes,
     expectedMinutes: Number.isFinite(seconds) ? seconds / 60 : null,
-    samples: samplingPlan(session.samplingIntervalS, available),
+    // sample until well past the target (1.5 times its predicted time), inside the slot
+    planMinutes: planMinutes(seconds / 60, available, session.samplingIntervalS),
+    samples: samplingPlan(session.samplingIntervalS, planMinutes(seconds / 60, available, session.samplingIntervalS)),
   };
 }
 

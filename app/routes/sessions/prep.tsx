@@ -60,16 +60,16 @@ export default function Prep({ loaderData }: Route.ComponentProps) {
             <table className="mt-1 w-full border-collapse text-sm">
               <thead>
                 <tr className="border-b border-black">
-                  <th className="text-left">Bench</th><th className="text-right">T (°C)</th><th className="text-left">Stock A</th><th className="text-left">Stock B</th><th className="text-right">Water</th>
+                  <th className="py-1 pr-3 text-left">Bench</th><th className="py-1 pr-4 text-right">T (°C)</th><th className="py-1 pr-4 text-left">Stock A</th><th className="py-1 pr-4 text-left">Stock B</th><th className="py-1 text-right">Water</th>
                 </tr>
               </thead>
               <tbody>
                 {rows.map((r) => (
                   <tr key={r.label} className="border-b border-black/30">
-                    <td className="font-bold">{r.label}</td>
-                    <td className="num">{fixed(r.temperatureC, 1)}</td>
-                    <td className="tabular-nums">{fixed(r.CA0, 4)} × {fixed(V, 0)} / {fixed(session.stockAMolL, 3)} = <strong>{mL(r.volumes.stockAMl)}</strong></td>
-                    <td className="tabular-nums">{fixed(r.CB0, 4)} × {fixed(V, 0)} / {fixed(session.stockBMolL, 3)} = <strong>{mL(r.volumes.stockBMl)}</strong></td>
+                    <td className="py-1 pr-3 font-bold">{r.label}</td>
+                    <td className="num py-1 pr-4">{fixed(r.temperatureC, 1)}</td>
+                    <td className="py-1 pr-4 tabular-nums">{fixed(r.CA0, 4)} × {fixed(V, 0)} / {fixed(session.stockAMolL, 3)} = <strong>{mL(r.volumes.stockAMl)}</strong></td>
+                    <td className="py-1 pr-4 tabular-nums">{fixed(r.CB0, 4)} × {fixed(V, 0)} / {fixed(session.stockBMolL, 3)} = <strong>{mL(r.volumes.stockBMl)}</strong></td>
                     <td className="num">{mL(r.volumes.waterMl)}</td>
                   </tr>
                 ))}
