@@ -241,3 +241,39 @@ describe("pooled Arrhenius requests", () => {
     expect(ok.ok && ok.value.kind).toBe("arrhenius");
   });
 });
+
+describe("odd but valid requests", () => {
+  it("never throw and always serialise: flat, reversed, sparse and random readings of every kind (seeded)", () => {
+    const normal = normalSource(99);
+    const u = () => Math.abs(normal()) % 1;
+    const kinds: FitRequest["measurement"][] = [
+      { kind: "concentrationA" },
+      { kind: "concentrationB" },
+      { kind: "conversionA" },
+      { kind: "signal", S0: 2 },
+      { kind: "signal", S0: 2, Sinf: 0.5 },
+      { kind: "absorbance", species: "A", epsilon: 30, pathCm: 1 },
+    ];
+    let fitted = 0;
+    for (let i = 0; i < 300; i++) {
+      const [orderA, orderB] = [[1, 0], [2, 0], [1, 1]][i % 3];
+      const kind = kinds[i % 6];
+      const n = 3 + Math.floor(u() * 30);
+      const mode = i % 5;
+      const points: [number, number][] = [];
+      for (let j = 0; j < n; j++) {
+        const t = mode === 0 ? j : mode === 1 ? n - j : j * j * 3;
+        const c = mode === 2 ? 0.01 : mode === 3 ? 0.02 * Math.exp(-j / 5) + 0.001 * normal() : Math.abs(0.02 * u());
+        const v = kind.kind === "conversionA" ? Math.min(1, Math.abs(c * 40)) : kind.kind === "signal" ? 2 - c * 50 : kind.kind === "absorbance" ? 30 * c : c;
+        points.push([t, v]);
+      }
+      const req = { reaction: { a: 1, b: 1 + (i % 2), orderA, orderB }, feed: { CA0: 0.02, CB0: 0.01 + 0.03 * u() }, units: { time: "s", concentration: "mol/L" }, measurement: kind, points, reference: { k: 0.1 } };
+      const v = validateFitRequest(req);
+      if (!v.ok) continue;
+      const out = JSON.parse(JSON.stringify(runFit(v.request)));
+      expect(Array.isArray(out.flags)).toBe(true);
+      fitted++;
+    }
+    expect(fitted).toBeGreaterThan(250);
+  });
+});

@@ -74,7 +74,13 @@ export interface FitResult {
   /** the rate law k belongs to, as text */
   rateLaw: string;
   /** the noise model behind every weight, and its estimated scale (sd = scale * v, noise.ts) */
-  noise: { model: NoiseModel; chosen: "request" | "residuals"; scale: number };
+  noise: {
+    model: NoiseModel;
+    chosen: "request" | "residuals";
+    scale: number;
+    /** k's uncertainty averaged over both models because the readings left the choice in doubt */
+    averaged: boolean;
+  };
   /** the marking fit: weighted least squares of the textbook straight line */
   weightedLine: {
     k: number;
@@ -274,8 +280,45 @@ export function runFit(request: FitRequest): FitResult {
   // itself (README: figures)
   const useCurve = sinfFitted || !mark || !Number.isFinite(mark.slopeStdErr);
   const k = useCurve ? curve.k : mark!.slope;
-  const kStdErr = useCurve ? curve.kStdErr : mark!.slopeStdErr;
-  const kCI95: [number, number] = useCurve ? curve.kCI95 : mark!.slopeCI95;
+  let kStdErr = useCurve ? curve.kStdErr : mark!.slopeStdErr;
+  let kCI95: [number, number] = useCurve ? curve.kCI95 : mark!.slopeCI95;
+  // When the readings leave the noise model in doubt, k's uncertainty includes that doubt:
+  // the model-averaged variance p var + q var' + p q (k - k')^2 with Akaike weights p, q of the
+  // two models (Burnham and Anderson 2002, section 4.3, unconditional variance; from memory).
+  let noiseAveraged = false;
+  if (noise.chosen === "residuals" && !exact && Number.isFinite(kStdErr)) {
+    const d = Math.abs(noise.logLikelihood.relative - noise.logLikelihood.absolute);
+    const q = 1 / (1 + Math.exp(d));
+    if (q > 0.01) {
+      const other: NoiseModel = noise.model === "absolute" ? "relative" : "absolute";
+      const otherWeights = other === "relative" ? noiseWeights("relative", kind, expectedValues(curve, data.values)) : undefined;
+      let kOther = NaN;
+      let seOther = NaN;
+      if (useCurve) {
+        const c2 = t0 > 0 ? fitShifted(law, data, sinfFitted ? undefined : hand.map, t0, otherWeights, curve.k) : otherWeights ? refitCurve(law, data, hand, otherWeights, curve.k) : hand.nonlinear;
+        kOther = c2.k;
+        seOther = c2.kStdErr;
+      } else {
+        // the other model's noise scale, from the same curve's residuals
+        let ss = 0;
+        for (let i = 0; i < n; i++) ss += (otherWeights ? otherWeights[i] : 1) * curve.residuals[i] ** 2;
+        const sigmaOther = Math.sqrt(ss / Math.max(1, curve.dof));
+        const m2 = markingLine(law, data, map, other, throughOrigin, curve, t0, lin, sigmaOther);
+        if (m2) {
+          kOther = m2.slope;
+          seOther = m2.slopeStdErr;
+        }
+      }
+      if (Number.isFinite(kOther) && Number.isFinite(seOther)) {
+        const p = 1 - q;
+        const averaged = Math.sqrt(p * kStdErr * kStdErr + q * seOther * seOther + p * q * (k - kOther) ** 2);
+        const dof = useCurve ? curve.dof : mark!.dof;
+        kStdErr = averaged;
+        kCI95 = confidenceInterval(k, averaged, dof);
+        noiseAveraged = true;
+      }
+    }
+  }
 
   if (mark && !exact) {
     const prefer = curvature || !curve.converged ? "weighted-line" : "curve";
@@ -332,7 +375,12 @@ export function runFit(request: FitRequest): FitResult {
     kSource: useCurve ? "curve" : "weighted-line",
     kDefinedOn: "A",
     rateLaw: rateLawText(law),
-    noise: { model: noise.model, chosen: noise.chosen, scale: mark ? mark.residualScale / data.valueScale : curve.residualStdDev / data.valueScale },
+    noise: {
+      model: noise.model,
+      chosen: noise.chosen,
+      scale: mark ? mark.residualScale / data.valueScale : curve.residualStdDev / data.valueScale,
+      averaged: noiseAveraged,
+    },
     weightedLine: {
       k: mark ? mark.slope : NaN,
       kStdErr: mark ? mark.slopeStdErr : NaN,
