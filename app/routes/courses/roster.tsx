@@ -11,7 +11,7 @@ import { Course } from "~/.server/db/models.server";
 import { ROSTER_MAX_BYTES, RosterFileError, importRoster, previewRoster, readTable, rosterRows, type PreviewRow, type RosterRow } from "~/.server/planning/roster.server";
 import { inviteToCourse } from "~/.server/people.server";
 import { Button, Field, FormMessage } from "~/components/form";
-import { PageTitle } from "~/components/page";
+import { PageTitle, TableBox } from "~/components/page";
 
 export const meta: Route.MetaFunction = () => [{ title: "Roster · Ratebook" }];
 
@@ -88,7 +88,7 @@ const STATUS_TEXT: Record<PreviewRow["status"], string> = { new: "＋ new", unch
 
 function PreviewTable({ rows }: { rows: PreviewRow[] }) {
   return (
-    <div className="overflow-x-auto rounded border border-rule bg-white">
+    <TableBox label="Roster rows">
       <table className="w-full border-collapse text-left text-sm">
         <thead>
           <tr className="border-b-2 border-ink"><th className="px-2 py-2">Row</th><th className="px-2 py-2">Status</th><th className="px-2 py-2">Student ID</th><th className="px-2 py-2">Name</th><th className="px-2 py-2">E-mail</th><th className="px-2 py-2">Group</th><th className="px-2 py-2">Notes</th></tr>
@@ -107,7 +107,7 @@ function PreviewTable({ rows }: { rows: PreviewRow[] }) {
           ))}
         </tbody>
       </table>
-    </div>
+    </TableBox>
   );
 }
 
@@ -124,13 +124,13 @@ export default function Roster({ loaderData, actionData }: Route.ComponentProps)
       {actionData?.kind === "saved" ? <FormMessage tone="info">{actionData.message} <Link className="underline" to={`/courses/${course.id}/groups`}>See the groups</Link>.</FormMessage> : null}
       {actionData?.kind === "error" && actionData.rows ? <PreviewTable rows={actionData.rows} /> : null}
       <div className="grid gap-8 lg:grid-cols-[2fr_1fr]">
-        <section aria-labelledby="upload-h">
+        <section aria-labelledby="upload-h" className="min-w-0">
           <h2 id="upload-h" className="mb-2 text-xl font-bold">Upload a roster</h2>
           <p className="mb-3 text-sm">A header row with the columns <strong>student ID</strong>, <strong>name</strong>, <strong>e-mail</strong> and, if you like, <strong>group</strong>; then one student a row. At most {maxBytes / 1048576} MiB. Nothing is saved until you confirm the preview.</p>
           <Form method="post" encType="multipart/form-data" className="mb-6 flex flex-wrap items-end gap-3 rounded border border-rule bg-white p-4">
-            <div>
+            <div className="min-w-0 max-w-full">
               <label htmlFor="roster" className="block font-bold">Roster file</label>
-              <input id="roster" name="roster" type="file" accept=".csv,.xlsx,text/csv,application/vnd.openxmlformats-officedocument.spreadsheetml.sheet" className="mt-1" />
+              <input id="roster" name="roster" type="file" accept=".csv,.xlsx,text/csv,application/vnd.openxmlformats-officedocument.spreadsheetml.sheet" className="mt-1 block w-full max-w-full text-sm" />
             </div>
             <Button busy={busy}>Preview</Button>
           </Form>

@@ -23,7 +23,7 @@ import type { BenchFeed, BenchPrediction, Problem } from "~/lib/planning/feed-de
 import { fieldError, typed, type FormResult } from "~/lib/form-result";
 import { minutes, mL } from "~/lib/planning/format";
 import { Button, Field, FormMessage } from "~/components/form";
-import { PageTitle } from "~/components/page";
+import { PageTitle, TableBox } from "~/components/page";
 import { CurveThumb } from "~/components/planning/curve-thumb";
 
 export const meta: Route.MetaFunction = () => [{ title: "Design a practical · Ratebook" }];
@@ -230,7 +230,7 @@ export default function DesignPractical({ loaderData, actionData }: Route.Compon
             </FormMessage>
           ) : null}
           {rows.length ? (
-            <div className="overflow-x-auto rounded border border-rule bg-white">
+            <TableBox label="Proposed benches">
               <table className="w-full border-collapse text-left">
                 <thead>
                   <tr className="border-b-2 border-ink">
@@ -282,7 +282,7 @@ export default function DesignPractical({ loaderData, actionData }: Route.Compon
                   })}
                 </tbody>
               </table>
-            </div>
+            </TableBox>
           ) : null}
           <p className="mt-2 text-sm text-ink-soft" aria-live="polite">
             {check.state !== "idle" ? "Checking…" : live ? "Checked just now against the reference." : rows.length ? "Edit a bench and the checks run again." : ""}

@@ -56,7 +56,7 @@ export default function Prep({ loaderData }: Route.ComponentProps) {
         </section>
         <section aria-label="Per bench" className="mt-4">
           <h2 className="font-bold">Per bench: V1 = C2 · V2 / C1 (C1 stock, C2 in the reactor, V2 = {fixed(V, 0)} mL)</h2>
-          <div className="overflow-x-auto">
+          <div className="overflow-x-auto" role="region" aria-label="Volumes per bench" tabIndex={0}>
             <table className="mt-1 w-full border-collapse text-sm">
               <thead>
                 <tr className="border-b border-black">

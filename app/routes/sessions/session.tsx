@@ -10,7 +10,7 @@ import { assignGroups, benchSchema, notifyGroups, sessionAccess, sessionView, up
 import { parseWithZod } from "@conform-to/zod/v4";
 import { fixed, minutes } from "~/lib/planning/format";
 import { Button, FormMessage } from "~/components/form";
-import { PageTitle } from "~/components/page";
+import { PageTitle, TableBox } from "~/components/page";
 
 export const meta: Route.MetaFunction = ({ data }) => [{ title: `${data?.view.title ?? "Practical"} · Ratebook` }];
 
@@ -99,7 +99,7 @@ export default function PracticalPage({ loaderData, actionData }: Route.Componen
               Reference (staff only): k = {fixed(view.reaction.reference!.k, 4)} L/(mol·s) at {view.reaction.reference!.TrefC} °C, Ea = {view.reaction.reference!.EaKJ} kJ/mol. Target {Math.round((view.benches[0]?.predicted.targetConversion ?? 0.8) * 100)} % conversion.
             </p>
             <Form method="post">
-              <div className="overflow-x-auto rounded border border-rule bg-white">
+              <TableBox label="Benches of this practical">
                 <table className="w-full border-collapse text-left">
                   <thead>
                     <tr className="border-b-2 border-ink">
@@ -137,7 +137,7 @@ export default function PracticalPage({ loaderData, actionData }: Route.Componen
                     ))}
                   </tbody>
                 </table>
-              </div>
+              </TableBox>
               {isInstructor ? (
                 <div className="mt-3 flex flex-wrap gap-3">
                   <Button name="intent" value="assign" busy={busy}>Save group assignment</Button>
