@@ -277,3 +277,13 @@ describe("odd but valid requests", () => {
     expect(fitted).toBeGreaterThan(250);
   });
 });
+
+describe("long records", () => {
+  it("a 100,000-point record whose feed was mistyped is caught (the test runs on evenly spaced rows)", () => {
+    const req = noisy(AB, 8, 100_000);
+    req.feed = { ...req.feed, CA0: req.feed.CA0 / 1.25 };
+    const f = runFit(req).flags.find((x) => x.code === "feed-mismatch");
+    expect(f?.rows).toEqual([0]);
+    expect(f!.factor!).toBeCloseTo(1.25, 1);
+  });
+});

@@ -37,7 +37,7 @@ import { fitNonlinear, type NonlinearFit } from "./nonlinearFit.ts";
 import { fitMarkingLine, type MarkingLine } from "./markingLine.ts";
 import { linearise, type CurveLinearisation } from "./curveJacobian.ts";
 import { findOutlier } from "./outliers.ts";
-import { checkFeed, formatFactor, likelyCause } from "./feedCheck.ts";
+import { checkFeed, formatFactor, likelyCause, type FeedFinding } from "./feedCheck.ts";
 import { candidateLaws, compare, type FittedCandidate, type LawComparison, type OrderComparison } from "./orderComparison.ts";
 import { runsTest, confidenceInterval } from "./statistics.ts";
 import jStat from "jstat";
@@ -453,6 +453,9 @@ function chooseOnRows(law: RateLaw, data: RunData, hand: LawFit, expected: Float
   });
 }
 
+/** rows the free feed-value test runs on for long records */
+const FEED_TEST_POINTS = 2000;
+
 /** level of the F-test by which the readings reject the stated feed value (a rule of this engine) */
 export const FEED_VALUE_P = 0.001;
 
@@ -472,7 +475,7 @@ function impliedFeed(
   request: FitRequest,
   zMin: number,
   relativeCheck = false,
-) {
+): FeedFinding | null {
   const { feed, measurement, t, values } = data;
   const n = t.length;
   if (n < 6 || !stated.converged) return null;
@@ -485,6 +488,16 @@ function impliedFeed(
   const z = stated.residuals[first] * Math.sign(map.slope) * Math.sqrt(weights ? weights[first] : 1) / stated.residualStdDev;
   if (!(pFirst < 0) || !(z > zMin)) return null;
   void sd;
+  if (n > FEED_TEST_POINTS) {
+    // long records: the search and the test on evenly spaced rows (the first one among them)
+    const rows = sampleRows(n, Math.ceil(n / FEED_TEST_POINTS));
+    if (!rows.includes(first)) rows.unshift(first);
+    const sub = pick(data, rows);
+    const subWeights = weights ? Float64Array.from(rows, (i) => weights[i]) : undefined;
+    const subStated = fitNonlinear({ law, feed, t: sub.t, values: sub.values, map, weights: subWeights }, stated.k);
+    const found = impliedFeed(law, sub, hand, subStated, subWeights, sd, request, -Infinity, relativeCheck);
+    return found ? { ...found, rows: [first] } : null;
+  }
   const onB = measurement.kind === "concentrationB" || (measurement.kind === "absorbance" && measurement.species === "B");
   const trial = (f: number) => {
     const fe = onB ? { ...feed, CB0: feed.CB0 * f } : { ...feed, CA0: feed.CA0 * f };
