@@ -248,6 +248,16 @@ describe("feed designer", () => {
     const audit = await AuditEntry.findOne({ where: { entityType: "lab_session", entityId: String(sessionId), action: "session.bench-changed-after-notice" } });
     expect((audit!.before as { CA0: number }).CA0).toBe(bench.CA0);
     expect((audit!.after as { CA0: number }).CA0).toBe(0.012);
+
+    const details = { intent: "edit-details", title: "Designed in a test (invented)", date: "2027-03-02", slotMinutes: "150", setupMinutes: "30", samplingIntervalS: "60", deadline: "2027-03-09T17:00" };
+    const bad = await call(sessionAction, request(`/sessions/${sessionId}`, { cookie: instructor, form: { ...details, slotMinutes: "0" } }), p);
+    expect(statusOf(bad)).toBe(400);
+    expect(payloadOf(bad).details.error.slotMinutes[0]).toContain("longer than 0 minutes");
+    expect((await LabSession.findByPk(sessionId))!.slotMinutes).toBe(150); // nothing stored changed
+    expect(statusOf(await call(sessionAction, request(`/sessions/${sessionId}`, { cookie: instructor, form: details }), p))).toBe(200);
+    const changed = await AuditEntry.findOne({ where: { entityId: String(sessionId), action: "session.details-changed-after-notice" } });
+    expect((changed!.before as { deadline: string | null }).deadline).toBeNull();
+    expect((changed!.after as { deadline: string }).deadline).toBe("2027-03-09T17:00:00.000Z");
   });
 });
 

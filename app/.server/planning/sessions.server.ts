@@ -135,7 +135,7 @@ export async function createSession(actor: User, courseId: number, input: SaveIn
         samplingIntervalS: input.samplingIntervalS,
         targetConversion: input.targetConversionPct / 100,
         rubric: rubricOf(input),
-        deadline: input.deadline ? new Date(input.deadline) : null,
+        deadline: utcDeadline(input.deadline),
         status: "planned",
       },
       { transaction },
@@ -148,6 +148,12 @@ export async function createSession(actor: User, courseId: number, input: SaveIn
     return s;
   });
   return { ok: true, value: session };
+}
+
+/** The form's deadline is a UTC wall time (datetime-local has no zone): read it as UTC on any server. */
+function utcDeadline(text: string | undefined): Date | null {
+  if (!text) return null;
+  return new Date(/(Z|[+-]\d\d:?\d\d)$/i.test(text) ? text : `${text}Z`);
 }
 
 export function groupProblems(problems: Problem[]): Record<string, string[]> {
@@ -346,6 +352,35 @@ export async function notifyGroups(actor: User, session: LabSession) {
     await recordAudit({ actorId: actor.id, action: "session.groups-notified", entityType: "lab_session", entityId: session.id, before, after: { status: "notified", mails: sent } }, transaction);
   });
   return { ok: true as const, sent };
+}
+
+/** The practical's own numbers that can change after it was planned (instructors). */
+export const detailsSchema = z
+  .object({
+    title: sessionFields.title,
+    date: sessionFields.date,
+    slotMinutes: sessionFields.slotMinutes,
+    setupMinutes: sessionFields.setupMinutes,
+    samplingIntervalS: sessionFields.samplingIntervalS,
+    deadline: sessionFields.deadline,
+  })
+  .superRefine(sessionRules);
+
+export async function updateSessionDetails(actor: User, session: LabSession, input: z.output<typeof detailsSchema>) {
+  const pick = (s: { title: string; date: string; slotMinutes: number; setupMinutes: number; samplingIntervalS: number; deadline: Date | null }) => ({
+    title: s.title,
+    date: s.date,
+    slotMinutes: s.slotMinutes,
+    setupMinutes: s.setupMinutes,
+    samplingIntervalS: s.samplingIntervalS,
+    deadline: s.deadline ? s.deadline.toISOString() : null,
+  });
+  const before = pick(session);
+  const next = { ...input, deadline: utcDeadline(input.deadline) };
+  await sequelize.transaction(async (transaction) => {
+    await session.update(next, { transaction });
+    await auditIfNotified(actor, session, "session.details-changed-after-notice", before, pick({ ...next }), transaction);
+  });
 }
 
 export { DEFAULT_RUBRIC };

@@ -6,10 +6,11 @@ import { requireUser } from "~/.server/guards.server";
 import { pathId, formId } from "~/.server/ids.server";
 import { readForm } from "~/.server/body.server";
 import { Group } from "~/.server/db/groups.server";
-import { assignGroups, benchSchema, notifyGroups, sessionAccess, sessionView, updateBench } from "~/.server/planning/sessions.server";
+import { assignGroups, benchSchema, detailsSchema, notifyGroups, sessionAccess, sessionView, updateBench, updateSessionDetails } from "~/.server/planning/sessions.server";
 import { parseWithZod } from "@conform-to/zod/v4";
 import { fixed, minutes } from "~/lib/planning/format";
-import { Button, FormMessage } from "~/components/form";
+import { fieldError, typed, type FormResult } from "~/lib/form-result";
+import { Button, Field, FormMessage } from "~/components/form";
 import { PageTitle, TableBox } from "~/components/page";
 
 export const meta: Route.MetaFunction = ({ data }) => [{ title: `${data?.view.title ?? "Practical"} · Ratebook` }];
@@ -22,7 +23,7 @@ export async function loader({ request, params }: Route.LoaderArgs) {
   return { view, groups, role: access.role, staff: access.staff, course: { id: access.course.id, code: access.course.code } };
 }
 
-type ActionData = { tone: "info" | "error"; message: string; benchId?: number };
+type ActionData = { tone: "info" | "error"; message: string; benchId?: number; details?: FormResult };
 
 export async function action({ request, params }: Route.ActionArgs) {
   const user = await requireUser(request);
@@ -59,6 +60,14 @@ export async function action({ request, params }: Route.ActionArgs) {
     const r = await updateBench(user, access.session, access.reaction, benchId, submission.value);
     if (!r.ok) return reply("error", Object.values(r.errors).flat().join(" "), 400, benchId);
     return reply("info", `Bench ${submission.value.label} saved.${access.session.notifiedAt ? " The groups were already told: the change is in the audit log." : ""}`, 200, benchId);
+  }
+  if (intent === "edit-details") {
+    const submission = parseWithZod(form, { schema: detailsSchema });
+    if (submission.status !== "success") {
+      return data<ActionData>({ tone: "error", message: "Check the practical's details.", details: submission.reply() }, { status: 400 });
+    }
+    await updateSessionDetails(user, access.session, submission.value);
+    return reply("info", `Details saved.${access.session.notifiedAt ? " The groups were already told: the change is in the audit log." : ""}`);
   }
   return reply("error", `Unknown action "${intent}".`, 400);
 }
@@ -155,6 +164,29 @@ export default function PracticalPage({ loaderData, actionData }: Route.Componen
                   Each student of an assigned group gets an e-mail with the link to their bench sheet.
                 </p>
                 <Form method="post"><Button name="intent" value="notify" busy={busy}>{view.notifiedAt ? "E-mail the groups again" : "E-mail the groups"}</Button></Form>
+              </section>
+              <section aria-labelledby="details-h" className="mt-8 rounded border border-rule bg-white p-4">
+                <h2 id="details-h" className="mb-2 text-xl font-bold">Change the practical's details</h2>
+                <Form method="post" noValidate className="grid gap-x-4 sm:grid-cols-3">
+                  <input type="hidden" name="intent" value="edit-details" />
+                  {(() => {
+                    const r = actionData?.details;
+                    const f = (name: string, label: string, value: string, type = "text") => (
+                      <Field label={label} name={name} type={type} defaultValue={typed(r, name) ?? value} error={fieldError(r, name)} />
+                    );
+                    return (
+                      <>
+                        {f("title", "Title", view.title)}
+                        {f("date", "Lab day", view.date, "date")}
+                        {f("deadline", "Upload deadline (UTC)", view.deadline ? view.deadline.slice(0, 16) : "", "datetime-local")}
+                        {f("slotMinutes", "Slot (min)", String(view.slotMinutes))}
+                        {f("setupMinutes", "Set-up (min)", String(view.setupMinutes))}
+                        {f("samplingIntervalS", "Sampling interval (s)", String(view.samplingIntervalS))}
+                      </>
+                    );
+                  })()}
+                  <div><Button name="intent" value="edit-details" busy={busy}>Save details</Button></div>
+                </Form>
               </section>
               <section aria-labelledby="edit-h" className="mt-8">
                 <h2 id="edit-h" className="mb-2 text-xl font-bold">Change a bench</h2>
