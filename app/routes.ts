@@ -36,6 +36,11 @@ export default [
       route("prep", "routes/sessions/prep.tsx"),
     ]),
     route("fit-check", "routes/tools/fit-check.tsx"),
+    // Uploads, feedback and review.
+    route("groups/:groupId/submissions", "routes/groups/submissions.tsx"),
+    route("submissions/:submissionId", "routes/submissions/submission.tsx"),
+    route("sessions/:sessionId/review", "routes/sessions/review.tsx"),
+    route("sessions/:sessionId/review/:submissionId", "routes/sessions/review-submission.tsx"),
     ...prefix("admin", [
       route("people", "routes/admin/people.tsx"),
       route("mail", "routes/admin/mail.tsx"),
@@ -54,6 +59,10 @@ export default [
     route("courses/:courseId/sessions", "routes/api/course-sessions.ts"),
     route("sessions/:sessionId", "routes/api/session.ts"),
     route("feed-check", "routes/api/feed-check.ts"),
+    route("groups/:groupId/submissions", "routes/api/group-submissions.ts"),
+    route("groups/:groupId/submissions/preview", "routes/api/submission-preview.ts"),
+    route("submissions/:submissionId", "routes/api/submission.ts"),
+    route("submissions/:submissionId/original", "routes/api/submission-original.ts"),
   ]),
 
   route("*", "routes/not-found.tsx"),

@@ -8,6 +8,7 @@ import * as m0003 from "./migrations/0003-planning";
 import * as m0004 from "./migrations/0004-job-queue";
 import * as m0010 from "./migrations/0010-user-sessions";
 import * as m0011 from "./migrations/0011-account-roles-course-archive";
+import * as m0015 from "./migrations/0015-submissions";
 import * as m0020 from "./migrations/0020-api-tokens";
 
 const migrations = [
@@ -17,6 +18,7 @@ const migrations = [
   { name: "0004-job-queue", ...m0004 },
   { name: "0010-user-sessions", ...m0010 },
   { name: "0011-account-roles-course-archive", ...m0011 },
+  { name: "0015-submissions", ...m0015 },
   { name: "0020-api-tokens", ...m0020 },
 ];
 

@@ -55,5 +55,8 @@ export async function seedDemo(): Promise<DemoSignIn[]> {
     }
     await seedPlanningDemo(course, transaction, () => hashPassword("demo-student-pass"));
   });
+  // Invented submissions for the demo's planned practical (none until one is planned).
+  const { seedDemoSubmissions } = await import("./demo-submissions");
+  await seedDemoSubmissions();
   return DEMO_SIGN_INS;
 }

@@ -6,6 +6,7 @@ import { Course, CourseMembership, User } from "~/.server/db/models.server";
 import { hashPassword } from "~/.server/passwords.server";
 import { Bench, LabSession } from "~/.server/db/lab-sessions.server";
 import { GroupMember } from "~/.server/db/groups.server";
+import { submissionFixture } from "./submission-fixture";
 
 export const VISITORS = ["signedOut", "admin", "instructor", "demonstrator", "student", "otherStudent"] as const;
 export type Visitor = (typeof VISITORS)[number];
@@ -83,6 +84,16 @@ export const ACCESS: Record<string, RouteAccess> = {
   "routes/api/course-sessions.ts": { url: "/api/courses/{course}/sessions", get: [401, 200, 200, 200, 200, 403], post: API_NO_METHOD },
   "routes/api/session.ts": { url: "/api/sessions/{session}", get: [401, 200, 200, 200, 200, 403], post: API_NO_METHOD },
   "routes/api/feed-check.ts": { url: "/api/feed-check", get: API_NO_METHOD, post: [401, 400, 400, 400, 403, 403] },
+  // Uploads, feedback and review: staff of the course and the group's own student; another
+  // course's student is refused (403: not in the course). A page upload needs multipart (415).
+  "routes/groups/submissions.tsx": { url: "/groups/{group}/submissions", get: [302, 200, 200, 200, 200, 403], post: [302, 415, 415, 415, 415, 403], screens: ["student", "instructor"] },
+  "routes/submissions/submission.tsx": { url: "/submissions/{submission}", get: [302, 200, 200, 200, 200, 403], post: NO_ACTION_PAGE, screens: ["student", "instructor"] },
+  "routes/sessions/review.tsx": { url: "/sessions/{workSession}/review", get: [302, 200, 200, 200, 403, 403], post: [302, 400, 400, 403, 403, 403], screens: ["instructor", "demonstrator"] },
+  "routes/sessions/review-submission.tsx": { url: "/sessions/{workSession}/review/{submission}", get: [302, 200, 200, 200, 403, 403], post: [302, 400, 400, 400, 403, 403], screens: ["instructor", "demonstrator"] },
+  "routes/api/group-submissions.ts": { url: "/api/groups/{group}/submissions", get: [401, 200, 200, 200, 200, 403], post: [401, 415, 415, 415, 415, 403] },
+  "routes/api/submission-preview.ts": { url: "/api/groups/{group}/submissions/preview", get: API_NO_METHOD, post: [401, 415, 415, 415, 415, 403] },
+  "routes/api/submission.ts": { url: "/api/submissions/{submission}", get: [401, 200, 200, 200, 200, 403], post: API_NO_METHOD },
+  "routes/api/submission-original.ts": { url: "/api/submissions/{submission}/original", get: [401, 200, 200, 200, 200, 403], post: API_NO_METHOD },
 
   "routes/not-found.tsx": { url: "/no-such-page", get: [404, 404, 404, 404, 404, 404], post: NO_ACTION_PAGE, screens: ["signedOut", "student"] },
 };
@@ -107,11 +118,14 @@ export async function makeFixtures(): Promise<Record<string, string>> {
   let student = await User.findOne({ where: { email } });
   student ??= await User.create({ email, displayName: "Other-course student (test)", role: "member", passwordHash: await hashPassword(password) });
   await CourseMembership.findOrCreate({ where: { courseId: other.id, userId: student.id }, defaults: { courseId: other.id, userId: student.id, role: "student" } });
+  const work = await submissionFixture();
   const session = await LabSession.findOne({ where: { courseId: course!.id }, order: [["id", "ASC"]] });
   const demoStudent = await User.findOne({ where: { email: SIGN_INS.student.email } });
   const group = await GroupMember.findOne({ where: { courseId: course!.id, userId: demoStudent!.id } });
   const bench = await Bench.findOne({ where: { sessionId: session!.id, groupId: group!.groupId } });
-  return { course: String(course!.id), otherCourse: String(other.id), badToken: "not-a-real-token", session: String(session!.id), bench: String(bench!.id) };
+  return { course: String(course!.id), otherCourse: String(other.id), badToken: "not-a-real-token", session: String(session!.id), bench: String(bench!.id),
+    group: String(work.groupId), workSession: String(work.sessionId), submission: String(work.submissionId),
+  };
 }
 
 export function fillUrl(url: string, fixtures: Record<string, string>) {

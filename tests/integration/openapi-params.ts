@@ -4,6 +4,7 @@ import { Course, User } from "~/.server/db/models.server";
 import { createApiToken } from "~/.server/api-tokens.server";
 import { LabSession } from "~/.server/db/lab-sessions.server";
 import { ReactionSystem } from "~/.server/db/reaction-systems.server";
+import { submissionFixture } from "../access/submission-fixture";
 
 export async function pathParameterValues(): Promise<Record<string, number | string>> {
   const course = await Course.findOne({ where: { code: "KIN-DEMO" } });
@@ -12,5 +13,6 @@ export async function pathParameterValues(): Promise<Record<string, number | str
   const token = await createApiToken(instructor!, "OpenAPI test token", 1);
   const session = await LabSession.findOne({ where: { courseId: course!.id }, order: [["id", "ASC"]] });
   const reaction = await ReactionSystem.findOne({ where: { courseId: course!.id }, order: [["id", "ASC"]] });
-  return { courseId: course!.id, tokenId: token.id, sessionId: session!.id, reactionSystemId: reaction!.id };
+  const { groupId, submissionId } = await submissionFixture();
+  return { courseId: course!.id, tokenId: token.id, sessionId: session!.id, reactionSystemId: reaction!.id, groupId, submissionId };
 }

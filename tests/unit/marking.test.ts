@@ -56,6 +56,11 @@ describe("bands, weights, late penalty (worked by hand)", () => {
     expect(r.analysis).toEqual(DEFAULT_RUBRIC.analysis);
     expect(r.latePenaltyPct).toBe(20);
     expect(rubricFrom(null)).toEqual(DEFAULT_RUBRIC);
+    // the planning form's flat shape: its bands are the experiment check's, weights 0.3 : 0.7
+    const flat = rubricFrom({ fullWithinPct: 10, partialWithinPct: 25, partialFraction: 0.5, analysisWeight: 0.7, experimentWeight: 0.3, latePenaltyPct: 10 });
+    expect(flat.experiment).toEqual({ weight: 0.3, fullWithinPct: 10, partialWithinPct: 25, partialFraction: 0.5 });
+    expect(flat.analysis).toEqual({ ...DEFAULT_RUBRIC.analysis, weight: 0.7 });
+    expect(combine(experimentCheck(0.118, 0.1, flat), analysisCheck(0.1, 0.1, flat), flat, false).mark).toBe(85); // 30 x 0.5 + 70
     expect(rubricFrom({ latePenaltyPct: 300 }).latePenaltyPct).toBe(10);
   });
 });

@@ -3,7 +3,8 @@
 import type { TaskList } from "graphile-worker";
 import type { TaskDefinition } from "./define-task.server";
 import { sendMailTask } from "./tasks/send-mail.server";
+import { markSubmissionTask } from "./tasks/mark-submission.server";
 
-const definitions: TaskDefinition[] = [sendMailTask];
+const definitions: TaskDefinition[] = [sendMailTask, markSubmissionTask];
 
 export const taskList: TaskList = Object.fromEntries(definitions.map((d) => [d.name, d.run]));

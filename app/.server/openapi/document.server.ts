@@ -5,8 +5,9 @@ import type { ApiPart } from "./part.server";
 import { corePart } from "./core.server";
 import { tokensPart } from "./tokens.server";
 import { planningPart } from "./planning.server";
+import { submissionsPart } from "./submissions.server";
 
-const parts: ApiPart[] = [corePart, tokensPart, planningPart];
+const parts: ApiPart[] = [corePart, tokensPart, planningPart, submissionsPart];
 
 export function openApiDocument() {
   const paths: Record<string, Record<string, unknown>> = {};

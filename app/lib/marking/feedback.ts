@@ -51,6 +51,7 @@ export function flagFeedback(flag: Flag & { refit?: { k?: number } }, rowNumbers
     default: {
       const code = flag.code as string;
       if (code === "outlier") return `${where ? capitalise(where) : "One reading"} sits far from the curve through the others: a wild reading (a misread scale, a bubble, a typing slip). Check it in your lab book.`;
+      if (code === "fits-disagree") return `The straight line and the curve through your readings give clearly different rate constants: some readings (often the last ones) carry more weight on the straight line than they deserve. Check them.`;
       if (code === "feed-mismatch") return `Your first readings do not match the feed your bench was given: check that you used your own bench's solutions and the right concentration unit.`;
       return flag.message;
     }

@@ -45,12 +45,20 @@ function bands(v: unknown, d: CheckBands, aliases: { weight?: string[]; full?: s
   };
 }
 
-/** The rubric from a practical's stored JSON (any missing part takes its default). */
+/**
+ * The rubric from a practical's stored JSON (any missing part takes its default). Two shapes are
+ * read: nested ({ experiment: {...}, analysis: {...} }) and the planning form's flat one
+ * ({ fullWithinPct, partialWithinPct, partialFraction, experimentWeight, analysisWeight,
+ * latePenaltyPct }), whose bands are the experiment check's; the analysis check then keeps its
+ * own default bands unless analysisFullWithinPct / analysisPartialWithinPct are given.
+ */
 export function rubricFrom(json: unknown): MarkingRubric {
   const o = isObj(json) ? json : {};
+  const flatExperiment = { fullWithinPct: o.fullWithinPct, partialWithinPct: o.partialWithinPct, partialFraction: o.partialFraction, weight: o.experimentWeight };
+  const flatAnalysis = { fullWithinPct: o.analysisFullWithinPct, partialWithinPct: o.analysisPartialWithinPct, partialFraction: o.analysisPartialFraction, weight: o.analysisWeight };
   return {
-    experiment: bands(o.experiment ?? o.experimentCheck, DEFAULT_RUBRIC.experiment),
-    analysis: bands(o.analysis ?? o.analysisCheck, DEFAULT_RUBRIC.analysis),
+    experiment: bands(o.experiment ?? o.experimentCheck ?? flatExperiment, DEFAULT_RUBRIC.experiment),
+    analysis: bands(o.analysis ?? o.analysisCheck ?? flatAnalysis, DEFAULT_RUBRIC.analysis),
     latePenaltyPct: num(o.latePenaltyPct ?? o.latePenalty, DEFAULT_RUBRIC.latePenaltyPct, (x) => x >= 0 && x <= 100),
   };
 }

@@ -1,0 +1,18 @@
+// Marks one submitted version (see app/.server/submissions/marking.server.ts). Database errors
+// throw, and graphile-worker retries; engine refusals are stored on the submission instead.
+import { z } from "zod";
+import { defineTask } from "../define-task.server";
+import { markSubmission } from "../../submissions/marking.server";
+
+const payload = z.object({ submissionId: z.number().int().positive() });
+export type MarkSubmissionPayload = z.infer<typeof payload>;
+
+declare module "../queue.server" {
+  interface TaskPayloads {
+    "mark-submission": MarkSubmissionPayload;
+  }
+}
+
+export const markSubmissionTask = defineTask("mark-submission", payload, async ({ submissionId }) => {
+  await markSubmission(submissionId);
+});

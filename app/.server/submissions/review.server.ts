@@ -1,0 +1,172 @@
+// What reviewers do with a practical's submissions: the queue (to check, flagged, checked), leave
+// out a reading (with a reason; the mark is recomputed), override a mark (reason required), comment,
+// mark as checked, and release the practical's marks (each group is e-mailed through the queue).
+import { data } from "react-router";
+import { Op } from "sequelize";
+import { getSequelize } from "../db/sequelize.server";
+import type { User } from "../db/models.server";
+import { Group, GroupMember } from "../db/groups.server";
+import { LabSession } from "../db/lab-sessions.server";
+import { Submission, SubmissionComment, effectiveMark, type Exclusion } from "../db/submissions.server";
+import { recordAudit } from "../audit.server";
+import { enqueue } from "../jobs/queue.server";
+import { config } from "../config.server";
+import { benchesOfSession } from "./context.server";
+import { computeMark, markColumns } from "./marking.server";
+
+export type QueueTab = "to-check" | "flagged" | "checked";
+
+function problem(message: string, status: 400 | 404 | 409 = 400): never {
+  throw data({ message }, { status });
+}
+
+/** Flagged: the engine raised a flag, marking failed, or the file was refused; checked: a reviewer said so. */
+export function queueTabOf(s: Pick<Submission, "reviewState" | "status" | "flags">): QueueTab {
+  if (s.reviewState === "checked") return "checked";
+  if (s.status === "failed" || s.status === "refused" || (s.flags ?? []).length > 0) return "flagged";
+  return "to-check";
+}
+
+export interface QueueRow {
+  groupId: number;
+  group: string;
+  bench: string;
+  CA0: number;
+  CB0: number;
+  temperatureC: number;
+  latest: {
+    id: number; version: number; status: string; late: boolean; submittedAt: string; mark: number | null; overridden: boolean;
+    flags: string[]; tab: QueueTab; markingError: string | null; k: number | null; deviationPct: number | null;
+  } | null;
+  versions: number;
+}
+
+export async function reviewQueue(session: LabSession): Promise<{ rows: QueueRow[]; counts: Record<QueueTab | "none", number> }> {
+  const benches = await benchesOfSession(session.id);
+  const subs = await Submission.findAll({
+    where: { sessionId: session.id },
+    attributes: ["id", "groupId", "version", "status", "late", "submittedAt", "autoMark", "overrideMark", "flags", "reviewState", "markingError", "checks"],
+    order: [["groupId", "ASC"], ["version", "DESC"]],
+  });
+  const byGroup = new Map<number, Submission[]>();
+  for (const s of subs) byGroup.set(s.groupId, [...(byGroup.get(s.groupId) ?? []), s]);
+  const counts = { "to-check": 0, flagged: 0, checked: 0, none: 0 };
+  const rows: QueueRow[] = benches.map((b) => {
+    const list = byGroup.get(b.groupId!) ?? [];
+    const s = list[0];
+    const tab = s ? queueTabOf(s) : null;
+    counts[tab ?? "none"]++;
+    return {
+      groupId: b.groupId!,
+      group: b.group?.name ?? `group ${b.groupId}`,
+      bench: b.label,
+      CA0: b.CA0,
+      CB0: b.CB0,
+      temperatureC: b.temperatureC,
+      versions: list.length,
+      latest: s
+        ? {
+            id: s.id, version: s.version, status: s.status, late: s.late, submittedAt: s.submittedAt.toISOString(),
+            mark: effectiveMark(s), overridden: s.overrideMark !== null, flags: (s.flags ?? []).map((f) => f.code), tab: tab!,
+            markingError: s.markingError, k: s.checks?.kMarking ?? null, deviationPct: s.checks?.experiment.deviationPct ?? null,
+          }
+        : null,
+    };
+  });
+  return { rows, counts };
+}
+
+/** Leaves one reading out (by its row in the file), with a reason; the mark is recomputed at once. */
+export async function excludeReading(actor: User, submission: Submission, row: number, reason: string) {
+  const why = reason.trim();
+  if (!why) problem("Give a reason for leaving the reading out.");
+  if (!submission.readings) problem("This version has no readings to leave out.", 409);
+  if (!submission.readings.rowNumbers.includes(row)) problem(`Row ${row} is not one of this file's readings.`);
+  if (submission.excluded.some((e) => e.row === row)) problem(`Row ${row} is already left out.`, 409);
+  await getSequelize().transaction(async (transaction) => {
+    const before = { excluded: submission.excluded, autoMark: submission.autoMark };
+    const excluded: Exclusion[] = [...submission.excluded, { row, reason: why.slice(0, 500), byId: actor.id, at: new Date().toISOString() }];
+    submission.excluded = excluded;
+    const cols = markColumns(await computeMark(submission));
+    await submission.update({ ...cols, excluded, markedAt: new Date() }, { transaction });
+    await recordAudit({ actorId: actor.id, action: "submission.reading-excluded", entityType: "submission", entityId: submission.id, before, after: { excluded, autoMark: cols.autoMark, reason: why } }, transaction);
+  });
+}
+
+/** Puts a left-out reading back; the mark is recomputed. */
+export async function includeReading(actor: User, submission: Submission, row: number) {
+  if (!submission.excluded.some((e) => e.row === row)) problem(`Row ${row} is not left out.`, 409);
+  await getSequelize().transaction(async (transaction) => {
+    const before = { excluded: submission.excluded, autoMark: submission.autoMark };
+    submission.excluded = submission.excluded.filter((e) => e.row !== row);
+    const cols = markColumns(await computeMark(submission));
+    await submission.update({ ...cols, excluded: submission.excluded, markedAt: new Date() }, { transaction });
+    await recordAudit({ actorId: actor.id, action: "submission.reading-included", entityType: "submission", entityId: submission.id, before, after: { excluded: submission.excluded, autoMark: cols.autoMark } }, transaction);
+  });
+}
+
+/** Sets (or, with mark null, removes) a reviewer's mark; the reason is required and audited with before and after. */
+export async function overrideMark(actor: User, submission: Submission, mark: number | null, reason: string) {
+  const why = reason.trim();
+  if (!why) problem("Give a reason for the override: it is kept in the audit log.");
+  if (mark !== null && !(Number.isFinite(mark) && mark >= 0 && mark <= 100)) problem("The mark must be a number from 0 to 100 (percent).");
+  await getSequelize().transaction(async (transaction) => {
+    const before = { mark: effectiveMark(submission), overrideMark: submission.overrideMark, overrideReason: submission.overrideReason };
+    await submission.update({ overrideMark: mark, overrideReason: mark === null ? null : why.slice(0, 1000) }, { transaction });
+    await recordAudit({ actorId: actor.id, action: mark === null ? "submission.override-removed" : "submission.mark-overridden", entityType: "submission", entityId: submission.id, before, after: { mark: effectiveMark(submission), overrideMark: mark, reason: why } }, transaction);
+  });
+}
+
+export async function addComment(actor: User, submission: Submission, body: string) {
+  const text = body.trim();
+  if (!text) problem("Write a comment first.");
+  await SubmissionComment.create({ submissionId: submission.id, authorId: actor.id, body: text.slice(0, 4000) });
+}
+
+export async function setReviewState(actor: User, submission: Submission, state: "to-check" | "checked") {
+  await getSequelize().transaction(async (transaction) => {
+    await submission.update({ reviewState: state, reviewedById: state === "checked" ? actor.id : null }, { transaction });
+    await recordAudit({ actorId: actor.id, action: `submission.${state === "checked" ? "checked" : "unchecked"}`, entityType: "submission", entityId: submission.id }, transaction);
+  });
+}
+
+export async function releaseInfo(sessionId: number): Promise<{ releasedAt: Date | null; showsReference: boolean }> {
+  const [rows] = await getSequelize().query("select marks_released_at as \"releasedAt\", release_shows_reference as \"showsReference\" from lab_sessions where id = :id", { replacements: { id: sessionId } });
+  const r = (rows as Array<{ releasedAt: Date | null; showsReference: boolean }>)[0];
+  return r ?? { releasedAt: null, showsReference: false };
+}
+
+/**
+ * Releases a practical's marks: students can then see their feedback page. Each member of each
+ * group with a submission gets an e-mail, sent through the job queue in the same transaction.
+ */
+export async function releaseMarks(actor: User, session: LabSession, showReference: boolean): Promise<{ mails: number }> {
+  const subs = await Submission.findAll({ where: { sessionId: session.id }, attributes: ["groupId", "status"] });
+  const pending = subs.filter((s) => s.status === "queued").length;
+  if (pending) problem(`${pending} submission(s) are still being marked; release when marking has finished.`, 409);
+  const groupIds = [...new Set(subs.map((s) => s.groupId))];
+  const groups = await Group.findAll({ where: { id: { [Op.in]: groupIds.length ? groupIds : [0] } }, include: [{ model: GroupMember, as: "members", include: ["user"] }] });
+  return getSequelize().transaction(async (transaction) => {
+    const before = await releaseInfo(session.id);
+    await getSequelize().query("update lab_sessions set marks_released_at = now(), release_shows_reference = :show, updated_at = now() where id = :id", { replacements: { id: session.id, show: showReference }, transaction });
+    let mails = 0;
+    for (const g of groups) {
+      for (const m of g.members ?? []) {
+        const user = (m as unknown as { user?: User }).user;
+        if (!user) continue;
+        await enqueue(
+          "send-mail",
+          {
+            to: user.email,
+            subject: `Marks released: ${session.title}`,
+            text: `Hello ${user.displayName},\n\nThe marks and feedback for "${session.title}" (group ${g.name}) are ready.\nRead them at ${config.appUrl}/groups/${g.id}/submissions\n\nRatebook`,
+          },
+          { transaction },
+        );
+        mails++;
+      }
+    }
+    await recordAudit({ actorId: actor.id, action: "session.marks-released", entityType: "lab_session", entityId: session.id, before, after: { releasedAt: new Date().toISOString(), showsReference: showReference, mails } }, transaction);
+    return { mails };
+  });
+}

@@ -1,0 +1,107 @@
+// What a submission looks like to whoever asks. Staff see everything. A member of the group sees,
+// before release, the status, version, problems and the preview fit (no reference, no tolerance,
+// no flag that compares with the reference, no mark); after release the mark, its parts and the
+// feedback, and the reference only if the instructor chose to show it.
+import type { FitResult } from "~/lib/kinetics";
+import { Submission, effectiveMark } from "../db/submissions.server";
+import type { Viewer } from "./context.server";
+
+/** Flags that are computed against the reference value: kept from students. */
+const REFERENCE_FLAGS = new Set(["unit-slip"]);
+
+/** The fit a student may see: the reference comparison removed. */
+export function studentFit(fit: unknown): FitResult | null {
+  if (!fit) return null;
+  const f = { ...(fit as FitResult) };
+  delete (f as { reference?: unknown }).reference;
+  f.flags = (f.flags ?? []).filter((x) => !REFERENCE_FLAGS.has(x.code));
+  return f;
+}
+
+export interface SubmissionView {
+  id: number;
+  groupId: number;
+  sessionId: number;
+  version: number;
+  status: string;
+  submittedAt: string;
+  late: boolean;
+  originalName: string | null;
+  problems: Array<{ row: number; column: string; message: string }>;
+  fit: FitResult | null;
+  flags: Array<{ code: string; message: string; rows: number[] }>;
+  feedback: string[];
+  mark: number | null;
+  released: boolean;
+  measured: string;
+  timeUnit: string;
+  concentrationUnit: string;
+  reportedK: number | null;
+  reportedMethod: string | null;
+  readings: { time: unknown; value: unknown; n: number; notes: string[] } | null;
+  /** staff, and students after release */
+  parts?: { experimentPart: number | null; analysisPart: number | null; latePenalty: number | null; autoMark: number | null; overrideMark: number | null };
+  /** staff only */
+  checks?: unknown;
+  overrideReason?: string | null;
+  markingError?: string | null;
+  excluded?: unknown;
+  reviewState?: string;
+  markingRuns?: number;
+  /** after release, when the instructor shows it */
+  kRefAtT?: number;
+}
+
+export function submissionView(s: Submission, viewer: Viewer, release: { releasedAt: Date | null; showsReference: boolean }, originalName: string | null): SubmissionView {
+  const released = release.releasedAt !== null;
+  const base: SubmissionView = {
+    id: s.id,
+    groupId: s.groupId,
+    sessionId: s.sessionId,
+    version: s.version,
+    status: s.status === "failed" && viewer !== "staff" ? "queued" : s.status,
+    submittedAt: s.submittedAt.toISOString(),
+    late: s.late,
+    originalName,
+    problems: s.problems ?? [],
+    fit: null,
+    flags: [],
+    feedback: [],
+    mark: null,
+    released,
+    measured: s.measured,
+    timeUnit: s.timeUnit,
+    concentrationUnit: s.concentrationUnit,
+    reportedK: s.reportedK,
+    reportedMethod: s.reportedMethod,
+    readings: s.readings ? { time: s.readings.time, value: s.readings.value, n: s.readings.points.length, notes: s.readings.notes } : null,
+  };
+  if (viewer === "staff") {
+    return {
+      ...base,
+      fit: (s.fit as FitResult) ?? null,
+      flags: s.flags ?? [],
+      feedback: s.feedback ?? [],
+      mark: effectiveMark(s),
+      parts: { experimentPart: s.experimentPart, analysisPart: s.analysisPart, latePenalty: s.latePenalty, autoMark: s.autoMark, overrideMark: s.overrideMark },
+      checks: s.checks,
+      overrideReason: s.overrideReason,
+      markingError: s.markingError,
+      excluded: s.excluded,
+      reviewState: s.reviewState,
+      markingRuns: s.markingRuns,
+    };
+  }
+  const fit = studentFit(s.fit);
+  if (!released) return { ...base, fit, flags: fit?.flags ?? [] };
+  const view: SubmissionView = {
+    ...base,
+    fit: release.showsReference ? ((s.fit as FitResult) ?? null) : fit,
+    flags: release.showsReference ? (s.flags ?? []) : (fit?.flags ?? []),
+    feedback: s.feedback ?? [],
+    mark: effectiveMark(s),
+    parts: { experimentPart: s.experimentPart, analysisPart: s.analysisPart, latePenalty: s.latePenalty, autoMark: s.autoMark, overrideMark: s.overrideMark },
+  };
+  if (release.showsReference && s.checks) view.kRefAtT = s.checks.kRefAtT;
+  return view;
+}

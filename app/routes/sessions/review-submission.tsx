@@ -1,0 +1,222 @@
+// One group's submission under review: plots, flags, engine details, every version with its
+// original file, and the reviewer's tools: leave out a reading (with a reason; the mark is
+// recomputed), override the mark (reason required, audited), comment, mark as checked.
+import { Form, Link, useNavigation } from "react-router";
+import type { Route } from "./+types/review-submission";
+import { requireUser } from "~/.server/guards.server";
+import { pathId } from "~/.server/ids.server";
+import { readForm } from "~/.server/body.server";
+import { whileDatabaseUp } from "~/.server/db/unavailable.server";
+import { requireSessionStaff } from "~/.server/submissions/context.server";
+import { loadSubmission } from "~/.server/submissions/access.server";
+import { addComment, excludeReading, includeReading, overrideMark, queueTabOf, releaseInfo, setReviewState } from "~/.server/submissions/review.server";
+import { submissionView } from "~/.server/submissions/view.server";
+import { groupSubmissions } from "~/.server/submissions/list.server";
+import { plotsOf, valueLabel } from "~/.server/submissions/page-data.server";
+import { SubmissionComment, SubmissionFile } from "~/.server/db/submissions.server";
+import { User } from "~/.server/db/models.server";
+import { Bench } from "~/.server/db/lab-sessions.server";
+import { PageTitle } from "~/components/page";
+import { FormMessage } from "~/components/form";
+import { ProblemList, RunPlotsView, StatusBadge } from "~/components/run-plots";
+import { sig, unitText, withInterval } from "~/lib/format";
+import { methodText } from "~/lib/marking/feedback";
+import { data } from "react-router";
+
+export const meta: Route.MetaFunction = ({ data }) => [{ title: `${data ? `${data.group.name} v${data.view.version} · ` : ""}Review · Ratebook` }];
+
+async function load(request: Request, params: { sessionId?: string; submissionId?: string }) {
+  const user = await requireUser(request);
+  const session = await requireSessionStaff(user, pathId(params.sessionId), false);
+  const { submission, group } = await loadSubmission(user, pathId(params.submissionId), false);
+  if (submission.sessionId !== session.id) throw data({ message: "This submission belongs to another practical." }, { status: 404 });
+  return { user, session, submission, group };
+}
+
+export async function loader({ request, params }: Route.LoaderArgs) {
+  return whileDatabaseUp(false, async () => {
+    const { session, submission, group } = await load(request, params);
+    const file = await SubmissionFile.findByPk(submission.id, { attributes: ["originalName", "size", "sha256", "contentType"] });
+    const view = submissionView(submission, "staff", await releaseInfo(session.id), file?.originalName ?? null);
+    const comments = await SubmissionComment.findAll({ where: { submissionId: submission.id }, include: [{ model: User, as: "author", attributes: ["displayName"] }], order: [["createdAt", "ASC"]] });
+    const bench = submission.benchId ? await Bench.findByPk(submission.benchId) : null;
+    return {
+      session: { id: session.id, title: session.title },
+      group: { id: group.id, name: group.name },
+      bench: bench ? { label: bench.label, CA0: bench.CA0, CB0: bench.CB0, temperatureC: bench.temperatureC } : null,
+      view,
+      tab: queueTabOf(submission),
+      file: file ? { name: file.originalName, size: file.size, sha256: file.sha256, type: file.contentType } : null,
+      versions: await groupSubmissions(group.id, "staff", session.id),
+      comments: comments.map((c) => ({ id: c.id, body: c.body, at: c.createdAt.toISOString(), author: c.author?.displayName ?? "former member" })),
+      plots: plotsOf(submission, view.fit),
+      valueLabel: valueLabel(submission),
+      rows: submission.readings ? submission.readings.rowNumbers.slice(0, 5000) : [],
+    };
+  });
+}
+
+export async function action({ request, params }: Route.ActionArgs) {
+  return whileDatabaseUp(false, async () => {
+    const { user, submission } = await load(request, params);
+    const form = await readForm(request);
+    const intent = String(form.get("intent") ?? "");
+    const text = (k: string) => String(form.get(k) ?? "");
+    const rowOf = () => {
+      const row = Number(text("row"));
+      if (!Number.isInteger(row) || row < 1) throw data({ message: "Choose the row of the reading (its row number in the file)." }, { status: 400 });
+      return row;
+    };
+    try {
+      switch (intent) {
+        case "exclude": await excludeReading(user, submission, rowOf(), text("reason")); return { ok: `Row ${text("row")} left out; the mark was recomputed.` };
+        case "include": await includeReading(user, submission, rowOf()); return { ok: `Row ${text("row")} is back in; the mark was recomputed.` };
+        case "override": {
+          const raw = text("mark").trim().replace(",", ".");
+          const mark = raw === "" ? NaN : Number(raw);
+          if (!Number.isFinite(mark)) return { error: "Enter the mark in percent (0 to 100).", field: "mark" };
+          await overrideMark(user, submission, mark, text("reason"));
+          return { ok: `Mark set to ${mark} %.` };
+        }
+        case "clear-override": await overrideMark(user, submission, null, text("reason") || "override removed"); return { ok: "The automatic mark applies again." };
+        case "comment": await addComment(user, submission, text("body")); return { ok: "Comment added." };
+        case "checked": await setReviewState(user, submission, "checked"); return { ok: "Marked as checked." };
+        case "unchecked": await setReviewState(user, submission, "to-check"); return { ok: "Back in the queue." };
+        default: throw data({ message: "Unknown action." }, { status: 400 });
+      }
+    } catch (thrown) {
+      // a refused change (no reason, bad row) comes back beside its form
+      if (thrown && typeof thrown === "object" && "type" in thrown && (thrown as { type: string }).type === "DataWithResponseInit") {
+        const d = (thrown as unknown as { data: { message: string }; init: { status: number } });
+        if (d.init.status === 400 || d.init.status === 409) return data({ error: d.data.message, field: intent }, { status: d.init.status });
+      }
+      throw thrown;
+    }
+  });
+}
+
+const input = "mt-1 w-full rounded border border-ink-soft bg-white px-3 py-2";
+
+export default function ReviewSubmission({ loaderData, actionData }: Route.ComponentProps) {
+  const { session, group, bench, view, file, versions, comments, plots, tab } = loaderData;
+  const navigation = useNavigation();
+  const busy = navigation.state !== "idle";
+  const fit = view.fit;
+  const checks = (view.checks ?? null) as unknown as { kMarking: number; kLine: number; kRefAtT: number; experiment: { deviationPct: number; band: string }; analysis: { deviationPct: number; band: string } } | null;
+  const excluded = (view.excluded ?? []) as Array<{ row: number; reason: string; at: string }>;
+  const err = actionData && "error" in actionData ? actionData : null;
+  return (
+    <>
+      <p className="mb-2 text-sm"><Link className="text-accent underline" to={`/sessions/${session.id}/review`}>← Review: {session.title}</Link></p>
+      <PageTitle sub={bench ? <>Bench {bench.label}: CA0 {sig(bench.CA0)} mol/L, CB0 {sig(bench.CB0)} mol/L, {sig(bench.temperatureC, 3)} °C</> : null}>
+        {group.name}, version {view.version}
+      </PageTitle>
+      <p className="mb-4 flex flex-wrap items-center gap-3"><StatusBadge status={view.status} late={view.late} /> <span>{{ flagged: "⚠ flagged", "to-check": "◌ to check", checked: "✓ checked" }[tab]}</span></p>
+      {actionData && "ok" in actionData ? <FormMessage tone="info">{actionData.ok}</FormMessage> : null}
+      {err && !err.field ? <FormMessage tone="error">{err.error}</FormMessage> : null}
+      {view.markingError ? <div role="alert" className="mb-4 rounded border-l-4 border-bad bg-bad-soft px-4 py-3"><strong>Marking failed:</strong> {view.markingError}</div> : null}
+      {view.status === "refused" ? <div role="alert" className="mb-4 rounded border-l-4 border-bad bg-bad-soft px-4 py-3"><strong>Refused:</strong> {view.problems[0]?.message}</div> : null}
+
+      <div className="grid gap-6 lg:grid-cols-3">
+        <section aria-labelledby="mark-h" className="rounded border border-rule bg-white p-4 lg:col-span-2">
+          <h2 id="mark-h" className="text-xl font-bold">Mark {view.mark !== null ? <span className="num">{sig(view.mark, 3)} %</span> : "—"}{view.parts?.overrideMark !== null && view.parts?.overrideMark !== undefined ? " (set by a reviewer)" : ""}</h2>
+          {view.parts ? (
+            <div className="overflow-x-auto"><table className="mt-2 border-collapse text-left text-sm">
+              <tbody>
+                <tr className="border-b border-rule"><th className="py-1 pr-4">Experiment part</th><td className="num whitespace-nowrap py-1">{sig(view.parts.experimentPart, 3)} %</td><td className="py-1 pl-4">{checks ? <>k {sig(checks.kMarking)} against {sig(checks.kRefAtT)} {fit ? unitText(fit.kUnit) : ""} at the bench ({checks.experiment.deviationPct > 0 ? "+" : ""}{sig(checks.experiment.deviationPct, 3)} %, {checks.experiment.band})</> : null}</td></tr>
+                <tr className="border-b border-rule"><th className="py-1 pr-4">Analysis part</th><td className="num whitespace-nowrap py-1">{sig(view.parts.analysisPart, 3)} %</td><td className="py-1 pl-4">{checks ? <>reported {view.reportedK !== null ? sig(view.reportedK) : "nothing"}{view.reportedMethod ? ` (${methodText(view.reportedMethod)})` : ""} against the group's line {sig(checks.kLine)} ({Number.isFinite(checks.analysis.deviationPct) ? `${sig(checks.analysis.deviationPct, 3)} %` : "—"}, {checks.analysis.band})</> : null}</td></tr>
+                <tr className="border-b border-rule"><th className="py-1 pr-4">Late penalty</th><td className="num whitespace-nowrap py-1">{view.late ? `−${sig(view.parts.latePenalty, 3)} %` : "none"}</td><td /></tr>
+                <tr><th className="py-1 pr-4">Automatic mark</th><td className="num whitespace-nowrap py-1">{sig(view.parts.autoMark, 3)} %</td><td className="py-1 pl-4">{view.overrideReason ? <>override: “{view.overrideReason}”</> : null}</td></tr>
+              </tbody>
+            </table></div>
+          ) : null}
+          {fit ? (
+            <>
+              <p className="mt-3">k (straight line) <strong className="num">{withInterval(fit.k, fit.kCI95)} {unitText(fit.kUnit)}</strong>; curve fit {withInterval(fit.nonlinear.k, fit.nonlinear.kCI95)}; R² {sig(fit.r2, 5)}; {fit.n} readings; {sig(fit.fractionReacted * 100, 3)} % of the limiting reagent reacted; model {fit.model}.</p>
+              <h3 className="mt-4 font-bold">Flags</h3>
+              {view.flags.length ? <ul className="mt-1 space-y-1 text-sm">{view.flags.map((f) => <li key={f.code} className="rounded border-l-4 border-warn bg-warn-soft px-3 py-1"><strong>⚠ {f.code}</strong>: {f.message}</li>)}</ul> : <p className="text-sm">None.</p>}
+              <h3 className="mt-4 font-bold">Feedback the group will read</h3>
+              <ul className="mt-1 list-disc pl-6 text-sm">{view.feedback.map((l, i) => <li key={i}>{l}</li>)}</ul>
+            </>
+          ) : null}
+          <ProblemList problems={view.status === "refused" ? [] : view.problems} limit={20} />
+          {plots ? <RunPlotsView plots={plots} timeUnit={view.timeUnit} valueLabel={loaderData.valueLabel} concentrationUnit={view.concentrationUnit} measuresCA={view.measured === "concentrationA" || view.measured === "concentration"} /> : null}
+        </section>
+
+        <div className="space-y-6">
+          <section aria-labelledby="override-h" className="rounded border border-rule bg-white p-4">
+            <h2 id="override-h" className="text-lg font-bold">Override the mark</h2>
+            <Form method="post">
+              <input type="hidden" name="intent" value="override" />
+              <label htmlFor="f-mark" className="mt-2 block font-bold">Mark, %</label>
+              <input id="f-mark" name="mark" inputMode="decimal" className={input} defaultValue={view.parts?.overrideMark ?? ""} />
+              <label htmlFor="f-override-reason" className="mt-2 block font-bold">Reason (kept in the audit log)</label>
+              <textarea id="f-override-reason" name="reason" rows={2} className={input} aria-describedby={err?.field === "override" || err?.field === "mark" ? "override-error" : undefined} />
+              {err?.field === "override" || err?.field === "mark" ? <p id="override-error" role="alert" className="mt-1 text-sm font-bold text-bad">✕ {err.error}</p> : null}
+              <button type="submit" disabled={busy} className="mt-2 rounded bg-accent px-3 py-1 font-bold text-accent-ink">Set mark</button>
+            </Form>
+            {view.parts?.overrideMark !== null && view.parts?.overrideMark !== undefined ? (
+              <Form method="post" className="mt-2"><input type="hidden" name="intent" value="clear-override" /><button type="submit" className="text-accent underline">Use the automatic mark again</button></Form>
+            ) : null}
+          </section>
+
+          <section aria-labelledby="exclude-h" className="rounded border border-rule bg-white p-4">
+            <h2 id="exclude-h" className="text-lg font-bold">Leave out a reading</h2>
+            <Form method="post">
+              <input type="hidden" name="intent" value="exclude" />
+              <label htmlFor="f-row" className="mt-2 block font-bold">Row in the file</label>
+              <input id="f-row" name="row" inputMode="numeric" className={input} />
+              <label htmlFor="f-exclude-reason" className="mt-2 block font-bold">Reason</label>
+              <input id="f-exclude-reason" name="reason" className={input} />
+              {err?.field === "exclude" ? <p role="alert" className="mt-1 text-sm font-bold text-bad">✕ {err.error}</p> : null}
+              <button type="submit" disabled={busy} className="mt-2 rounded bg-accent px-3 py-1 font-bold text-accent-ink">Leave out and re-mark</button>
+            </Form>
+            {excluded.length ? (
+              <ul className="mt-3 space-y-1 text-sm">
+                {excluded.map((e) => (
+                  <li key={e.row} className="flex flex-wrap items-center gap-2">Row {e.row}: {e.reason}
+                    <Form method="post"><input type="hidden" name="intent" value="include" /><input type="hidden" name="row" value={e.row} /><button type="submit" className="text-accent underline">put back</button></Form>
+                  </li>
+                ))}
+              </ul>
+            ) : null}
+          </section>
+
+          <section aria-labelledby="state-h" className="rounded border border-rule bg-white p-4">
+            <h2 id="state-h" className="text-lg font-bold">Review state</h2>
+            <Form method="post" className="mt-2">
+              <input type="hidden" name="intent" value={tab === "checked" ? "unchecked" : "checked"} />
+              <button type="submit" disabled={busy} className="rounded border border-ink px-3 py-1 font-bold">{tab === "checked" ? "Put back in the queue" : "Mark as checked"}</button>
+            </Form>
+          </section>
+
+          <section aria-labelledby="comments-h" className="rounded border border-rule bg-white p-4">
+            <h2 id="comments-h" className="text-lg font-bold">Comments</h2>
+            {comments.length ? <ul className="mt-2 space-y-2 text-sm">{comments.map((c) => <li key={c.id}><strong>{c.author}</strong> <span className="text-ink-soft">{new Date(c.at).toLocaleString("en-GB", { timeZone: "UTC" })}</span><br />{c.body}</li>)}</ul> : <p className="text-sm text-ink-soft">None yet.</p>}
+            <Form method="post" className="mt-2">
+              <input type="hidden" name="intent" value="comment" />
+              <label htmlFor="f-comment" className="block font-bold">Add a comment (staff only)</label>
+              <textarea id="f-comment" name="body" rows={2} className={input} />
+              {err?.field === "comment" ? <p role="alert" className="mt-1 text-sm font-bold text-bad">✕ {err.error}</p> : null}
+              <button type="submit" disabled={busy} className="mt-2 rounded border border-ink px-3 py-1 font-bold">Add comment</button>
+            </Form>
+          </section>
+
+          <section aria-labelledby="versions-h" className="rounded border border-rule bg-white p-4">
+            <h2 id="versions-h" className="text-lg font-bold">Every version</h2>
+            <ul className="mt-2 space-y-2 text-sm">
+              {versions.map((v) => (
+                <li key={v.id}>
+                  {v.id === view.id ? <strong>v{v.version} (this one)</strong> : <Link className="text-accent underline" to={`/sessions/${session.id}/review/${v.id}`}>v{v.version}</Link>}{" "}
+                  <StatusBadge status={v.status} late={v.late} /> {v.mark !== null ? <span className="num">{sig(v.mark, 3)} %</span> : null}<br />
+                  <a className="text-accent underline" href={`/api/submissions/${v.id}/original`} download>{v.originalName}</a> <span className="text-ink-soft">({sig(v.size / 1024, 3)} kB, SHA-256 {v.sha256.slice(0, 12)}…)</span>
+                </li>
+              ))}
+            </ul>
+            {file ? <p className="mt-2 text-xs text-ink-soft break-all">This version: {file.type}, {file.size} bytes, SHA-256 {file.sha256}</p> : null}
+          </section>
+        </div>
+      </div>
+    </>
+  );
+}
