@@ -29,10 +29,13 @@ export async function seedDemoSubmissions(courseCode = "KIN-DEMO"): Promise<numb
     if (!benches.length) continue;
     if ((await Submission.count({ where: { sessionId: session.id } })) > 0) return 0;
     const system = session.reactionSystem!;
+    const cal = (system.calibration ?? {}) as Record<string, unknown>;
     // the wrong straight line only shows on a bench whose feed needs the other form
     const unequal = benches.filter((b) => Math.abs(b.CB0 - (system.coeffB / system.coeffA) * b.CA0) > 1e-6 * b.CB0);
     const plan = new Map<number, Mistake>();
-    const pool = [...benches];
+    // the demo student's bench is left to upload in the demo, so it makes no planned mistake
+    const studentGroups = demoStudent ? new Set((await GroupMember.findAll({ where: { userId: demoStudent.id } })).map((m) => m.groupId)) : new Set<number>();
+    const pool = benches.filter((b) => !studentGroups.has(b.groupId!));
     for (const m of MISTAKE_ORDER) {
       const choices = m === "wrong-line" && unequal.length ? pool.filter((b) => unequal.includes(b)) : pool;
       const bench = choices.find((b) => !plan.has(b.id));
@@ -54,7 +57,10 @@ export async function seedDemoSubmissions(courseCode = "KIN-DEMO"): Promise<numb
         n: 16 + (i % 5),
         seed: 1000 + bench.id,
         mistake,
+        // groups without a mistake send the practical's own readings when it follows conductivity
+        signal: system.measured === "conductivity" && mistake === "none" ? { S0: Number(cal.conductivityStart ?? 2.4), Sinf: Number(cal.conductivityEnd ?? 0.95), noise: 0.004 } : undefined,
       });
+      const measured = system.measured === "conductivity" && mistake === "none" ? "conductivity" : "concentrationA";
       const text = `# invented demo readings, bench ${bench.label}\n${runCsv(run, i % 2 === 1)}`;
       const bytes = new TextEncoder().encode(text);
       const created = await createSubmission(
@@ -63,7 +69,7 @@ export async function seedDemoSubmissions(courseCode = "KIN-DEMO"): Promise<numb
         { bytes, name: `bench-${bench.label}-readings.csv`, type: "text/csv", size: bytes.byteLength },
         {
           sessionId: String(session.id),
-          measured: "concentrationA",
+          measured,
           reportedK: String(run.reportedK),
           reportedMethod: run.reportedMethod,
         },

@@ -92,6 +92,7 @@ describe("upload, review, release, feedback", () => {
     await page.screenshot({ path: path.join(shots, "upload-preview-1280.png"), fullPage: true });
     // the preview has caught up with the last change
     await expect.poll(() => page.getByText("The preview below shows what will be marked.").count(), { timeout: 10_000 }).toBe(1);
+    await expect.poll(() => page.getByRole("button", { name: "Submit these readings" }).isEnabled(), { timeout: 10_000 }).toBe(true);
     await page.getByRole("button", { name: "Submit these readings" }).click();
     await page.waitForURL(/\/submissions\/\d+$/);
     submissionUrl = new URL(page.url()).pathname;

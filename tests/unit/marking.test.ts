@@ -182,3 +182,13 @@ describe("whole runs from a known k", () => {
     expect(JSON.stringify(p.result)).not.toMatch(/kAtT|tolerance/);
   });
 });
+
+describe("the group's own straight line", () => {
+  test("a k from the wrong straight-line form for the feed is flagged for reviewers and named in the feedback", () => {
+    const points = run(kAt35);
+    const out = markRun(ctx, { ...base(points), reportedMethod: "1/CA - 1/CA0" });
+    if (!out.ok) throw new Error("refused");
+    expect(out.result.flags.map((f) => f.code)).toContain("wrong-line-form");
+    expect(out.feedback.join(" ")).toMatch(/you used 1\/CA − 1\/CA0/);
+  });
+});

@@ -106,6 +106,15 @@ export function markRun(ctx: MarkingContext, run: RunInput): MarkAttempt {
     late: run.late,
     excludedRows: run.excludedRows,
   });
+  // The group's own method is judged here, not by the engine: a flag so reviewers see it in the queue.
+  const method = run.reportedMethod;
+  if (method && method !== expectedForm && ["ln(CA0/CA)", "1/CA - 1/CA0", "ln[(CB*CA0)/(CB0*CA)]"].includes(method)) {
+    result.flags.push({
+      code: "wrong-line-form" as FitResult["flags"][number]["code"],
+      message: `The group reports a k from ${method.replace(/\*/g, "·")} against t; this feed and rate law call for ${expectedForm.replace(/\*/g, "·")}.`,
+      rows: [],
+    });
+  }
   return { ok: true, result, experiment, analysis, parts, kMarking, kLine, kRefAtT, feedback, rowNumbers };
 }
 

@@ -22,6 +22,8 @@ export interface SimulationInput {
   noise?: number;
   seed: number;
   mistake?: Mistake;
+  /** write a signal linear in the extent instead of CA (conductivity, mS/cm): S0 at the start, Sinf at the end */
+  signal?: { S0: number; Sinf: number; noise: number };
 }
 
 export interface SimulatedRun {
@@ -94,6 +96,20 @@ export function simulateRun(input: SimulationInput): SimulatedRun {
   const ys = believedCA.map((c) => lineY(lineLaw, believedFeed, c));
   const ok = ys.map((y, i) => [believedT[i], y] as const).filter(([, y]) => Number.isFinite(y));
   const line = fitLine(ok.map((p) => p[0]), ok.map((p) => p[1]));
+  if (input.signal && mistake === "none") {
+    // the same run read by a conductivity cell: linear in the extent of reaction
+    const { S0, Sinf, noise: sd } = input.signal;
+    const reach = maxReactedA(feed);
+    const kappa = tS.map((t) => S0 + ((Sinf - S0) * (feed.CA0 - concentrationA(law, feed, input.k, t))) / reach + sd * normal());
+    return {
+      header: ["t / min", "kappa (mS/cm)"],
+      rows: minutes.map((t, i) => [round(t, 4), round(kappa[i], 4)]),
+      reportedK: Number(line.slope.toPrecision(4)),
+      reportedMethod,
+      timeUnit,
+      concentrationUnit,
+    };
+  }
   return { header, rows, reportedK: Number(line.slope.toPrecision(4)), reportedMethod, timeUnit, concentrationUnit };
 }
 

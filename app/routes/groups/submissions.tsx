@@ -112,6 +112,9 @@ export default function GroupSubmissions({ loaderData, actionData }: Route.Compo
   const [sizeError, setSizeError] = useState<string | null>(null);
   const [measured, setMeasured] = useState<string>(practical?.measured ?? "concentration");
   const timer = useRef<ReturnType<typeof setTimeout> | null>(null);
+  // a preview about to be asked for: submitting waits for it (a navigation racing a fetcher
+  // submission can leave the old page on screen)
+  const [waiting, setWaiting] = useState(false);
   const preview = fetcher.data && !fetcher.data.errors && !fetcher.data.error ? fetcher.data : null;
   const previewErrors = fetcher.data?.errors ?? (fetcher.data?.error ? [{ path: "", message: fetcher.data.error }] : []);
   const submitErrors = actionData && "errors" in actionData ? actionData.errors : [];
@@ -127,7 +130,9 @@ export default function GroupSubmissions({ loaderData, actionData }: Route.Compo
     }
     setSizeError(null);
     if (timer.current) clearTimeout(timer.current);
+    setWaiting(true);
     timer.current = setTimeout(() => {
+      setWaiting(false);
       fetcher.submit(new FormData(form), { method: "post", action: `/api/groups/${group.id}/submissions/preview`, encType: "multipart/form-data" });
     }, 250);
   }
@@ -228,10 +233,10 @@ export default function GroupSubmissions({ loaderData, actionData }: Route.Compo
         </fieldset>
 
         <div className="mb-6 lg:col-span-2">
-          <button type="submit" disabled={sending || !fileName || !!sizeError} className="rounded bg-accent px-4 py-2 font-bold text-accent-ink hover:opacity-90 disabled:opacity-60">
+          <button type="submit" disabled={sending || !fileName || !!sizeError || waiting || fetcher.state !== "idle"} className="rounded bg-accent px-4 py-2 font-bold text-accent-ink hover:opacity-90 disabled:opacity-60">
             {sending ? "Sending…" : "Submit these readings"}
           </button>
-          <span className="ml-3 text-sm text-ink-soft">{fetcher.state !== "idle" ? "Updating the preview…" : fileName ? "The preview below shows what will be marked." : "Choose a file to see a preview."}</span>
+          <span className="ml-3 text-sm text-ink-soft">{fetcher.state !== "idle" || waiting ? "Updating the preview…" : fileName ? "The preview below shows what will be marked." : "Choose a file to see a preview."}</span>
         </div>
       </Form>
 
