@@ -111,47 +111,29 @@ export function FitReport({ result, kind, points, lines }: Props) {
         Model: <strong className="text-ink">{MODEL_TEXT[result.model] ?? result.model}</strong>; straight line {formulaText(result.line.form)} against t.
         k is defined on A: −dCA/dt = k·CA{result.model.startsWith("second-order-AB") ? "·CB" : result.model === "second-order-A" ? "²" : ""}. Limiting reagent {result.limitingReagent}.
       </p>
-      <div className="mt-4">
-      <TableBox label="Fitted values">
-      <table className="border-collapse text-left">
-        <tbody>
-          <tr className="border-b border-rule">
-            <th className="px-2 py-1 pr-6">k, straight-line fit</th>
-            <td className="num px-2 py-1">{withInterval(result.k, result.kCI95)} {unitText(result.kUnit)}</td>
-            {perMinute ? <td className="num py-1 pl-6 text-ink-soft">= {sig(result.k * 60)} {unitText(result.kUnit, true)}</td> : <td />}
-          </tr>
-          <tr className="border-b border-rule">
-            <th className="px-2 py-1 pr-6">k, curve fit to the readings</th>
-            <td className="num px-2 py-1">{withInterval(result.nonlinear.k, result.nonlinear.kCI95)} {unitText(result.kUnit)}</td>
-            {perMinute ? <td className="num py-1 pl-6 text-ink-soft">= {sig(result.nonlinear.k * 60)} {unitText(result.kUnit, true)}</td> : <td />}
-          </tr>
-          <tr className="border-b border-rule">
-            <th className="px-2 py-1 pr-6">k, unweighted line (hand method)</th>
-            <td className="num px-2 py-1">{withInterval(result.line.k, result.line.kCI95)} {unitText(result.kUnit)}</td><td />
-          </tr>
-          {result.nonlinear.Sinf ? (
-            <tr className="border-b border-rule">
-              <th className="px-2 py-1 pr-6">Final signal S∞ (fitted)</th>
-              <td className="num px-2 py-1">{withInterval(result.nonlinear.Sinf.value, result.nonlinear.Sinf.ci95)}</td><td />
-            </tr>
-          ) : null}
-          <tr className="border-b border-rule"><th className="px-2 py-1 pr-6">R² of the straight line</th><td className="num px-2 py-1">{sig(result.r2, 5)}</td><td /></tr>
-          <tr className="border-b border-rule"><th className="px-2 py-1 pr-6">Points used</th><td className="num px-2 py-1">{result.n}</td><td /></tr>
-          <tr className="border-b border-rule">
-            <th className="px-2 py-1 pr-6">Start-time offset implied by the intercept</th>
-            <td className="num px-2 py-1">{sig(result.line.timeOffset, 3)} {timeUnit}</td><td />
-          </tr>
-          <tr><th className="px-2 py-1 pr-6">Limiting reagent reacted by the last reading</th><td className="num px-2 py-1">{sig(result.fractionReacted * 100, 3)} %</td><td /></tr>
-        </tbody>
-      </table>
-      </TableBox>
-      </div>
+      {/* A list rather than a table: on a phone each value goes under its name instead of squeezing beside it. */}
+      <dl className="mt-4 grid gap-x-6 border-t border-rule sm:grid-cols-[minmax(0,18rem)_1fr]">
+        <Row name={`k, ${result.kSource === "curve" ? "curve fit" : "weighted straight-line fit"} (used for marking)`}>
+          {withInterval(result.k, result.kCI95)} {unitText(result.kUnit)}
+          {perMinute ? <span className="block text-ink-soft">= {sig(result.k * 60)} {unitText(result.kUnit, true)}</span> : null}
+        </Row>
+        <Row name="k, curve fit to the readings">
+          {withInterval(result.nonlinear.k, result.nonlinear.kCI95)} {unitText(result.kUnit)}
+          {perMinute ? <span className="block text-ink-soft">= {sig(result.nonlinear.k * 60)} {unitText(result.kUnit, true)}</span> : null}
+        </Row>
+        <Row name="k, unweighted line (hand method)">{withInterval(result.line.k, result.line.kCI95)} {unitText(result.kUnit)}</Row>
+        {result.nonlinear.Sinf ? <Row name="Final signal S∞ (fitted)">{withInterval(result.nonlinear.Sinf.value, result.nonlinear.Sinf.ci95)}</Row> : null}
+        <Row name="R² of the straight line">{sig(result.r2, 5)}</Row>
+        <Row name="Points used">{result.n}</Row>
+        <Row name="Start-time offset implied by the intercept">{sig(result.line.timeOffset, 3)} {timeUnit}</Row>
+        <Row name="Limiting reagent reacted by the last reading">{sig(result.fractionReacted * 100, 3)} %</Row>
+      </dl>
 
       {ref ? (
         <p className={`mt-4 rounded border-l-4 px-4 py-2 ${ref.withinTolerance ? "border-good" : "border-bad bg-bad-soft"}`}>
           <strong>{ref.withinTolerance ? "✓ Within tolerance" : "✕ Outside tolerance"}</strong>: reference k at{" "}
           {ref.temperatureK ? `${sig(ref.temperatureK - 273.15, 4)} °C` : "the run temperature"} is {sig(ref.kAtT)} {unitText(result.kUnit)}; the
-          straight-line k differs by {sig(ref.deviationPct, 3)} % (tolerance ±{sig(ref.tolerancePct, 3)} %).
+          marking k differs by {sig(ref.deviationPct, 3)} % (tolerance ±{sig(ref.tolerancePct, 3)} %).
         </p>
       ) : null}
 
@@ -196,6 +178,15 @@ export function FitReport({ result, kind, points, lines }: Props) {
 
       <ReadingsPlots result={result} kind={kind} points={points} />
     </section>
+  );
+}
+
+function Row({ name, children }: { name: string; children: React.ReactNode }) {
+  return (
+    <>
+      <dt className="pt-2 font-bold sm:border-b sm:border-rule sm:py-1">{name}</dt>
+      <dd className="border-b border-rule pb-2 tabular-nums sm:py-1">{children}</dd>
+    </>
   );
 }
 

@@ -22,11 +22,12 @@ export function PageTitle({ children, sub }: { children: ReactNode; sub?: ReactN
 
 /**
  * A wide table's own scrolling box, so the page itself never scrolls sideways on a phone.
- * Focusable and labelled, so keyboard users can scroll it too.
+ * Focusable and labelled, so keyboard users can scroll it too; `relative`, so visually hidden
+ * (absolutely placed) labels inside stay within the box instead of widening the page.
  */
 export function TableBox({ label, children }: { label: string; children: ReactNode }) {
   return (
-    <div role="region" aria-label={label} tabIndex={0} className="max-w-full overflow-x-auto rounded border border-rule bg-white">
+    <div role="region" aria-label={label} tabIndex={0} className="relative max-w-full overflow-x-auto rounded border border-rule bg-white">
       {children}
     </div>
   );

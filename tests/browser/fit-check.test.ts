@@ -4,7 +4,7 @@ import fs from "node:fs";
 import path from "node:path";
 import { afterAll, beforeAll, describe, expect, test } from "vitest";
 import { chromium, type Browser, type Page } from "playwright-core";
-import { CHROMIUM_ARGS, CHROMIUM_PATH, signIn, startAppServer } from "./harness";
+import { CHROMIUM_ARGS, CHROMIUM_PATH, seriousAxeViolations, signIn, startAppServer } from "./harness";
 
 const shots = path.resolve(import.meta.dirname, "..", "..", "test-results");
 let server: Awaited<ReturnType<typeof startAppServer>>;
@@ -15,7 +15,8 @@ beforeAll(async () => {
   fs.mkdirSync(shots, { recursive: true });
   server = await startAppServer();
   browser = await chromium.launch({ executablePath: CHROMIUM_PATH, args: CHROMIUM_ARGS });
-  page = await browser.newPage({ viewport: { width: 1280, height: 900 } });
+  // bypassCSP so axe-core can be injected (tests/browser/harness.ts).
+  page = await browser.newPage({ viewport: { width: 1280, height: 900 }, bypassCSP: true });
   await page.goto(`${server.url}/sign-in?returnTo=%2Ffit-check`);
   await signIn(page, "instructor@demo.ratebook.invalid", "demo-instructor-pass");
   await page.waitForURL(`${server.url}/fit-check`);
@@ -33,10 +34,11 @@ describe("check a data set", () => {
     await expect.poll(() => page.getByRole("heading", { name: "Result" }).count(), { timeout: 10_000 }).toBe(1);
     const report = (await page.locator("section[aria-labelledby=result-h]").textContent()) ?? "";
     expect(report).toContain("first order in A and B, unequal feed");
-    expect(report).toMatch(/k, straight-line fit[\d.]+ \(95 % CI [\d.]+ to [\d.]+\) L\/\(mol·s\)/);
+    expect(report).toMatch(/k, weighted straight-line fit \(used for marking\)[\d.]+ \(95 % CI [\d.]+ to [\d.]+\) L\/\(mol·s\)/);
     expect(report).toMatch(/Within tolerance|Outside tolerance/);
     expect(await page.getByRole("img", { name: "Readings against time with the fitted model" }).count()).toBe(1);
     await page.screenshot({ path: path.join(shots, "fit-check-result.png"), fullPage: true });
+    expect(await seriousAxeViolations(page)).toEqual([]);
   });
 
   test("bad input is named beside its field, with the pasted line", async () => {
@@ -46,5 +48,6 @@ describe("check a data set", () => {
     await expect.poll(() => page.getByText("Enter the initial concentration of A.").count()).toBe(1);
     expect(await page.getByText('Line 3, column 2 (value): "abc" is not a number.').count()).toBe(1);
     await page.screenshot({ path: path.join(shots, "fit-check-errors.png") });
+    expect(await seriousAxeViolations(page)).toEqual([]);
   });
 });

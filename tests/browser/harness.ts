@@ -53,3 +53,46 @@ export async function signIn(page: Page, email: string, password: string) {
   await page.getByLabel("Password").fill(password);
   await page.getByRole("button", { name: "Sign in" }).click();
 }
+
+/** A browser context signed in with a session cookie made in-process (see tests/integration/helpers). */
+export async function contextWithCookie(browser: import("playwright-core").Browser, baseUrl: string, cookie: string | null, viewport = { width: 1280, height: 900 }) {
+  // bypassCSP: axe-core is injected as an inline script, which the app's CSP (rightly) refuses.
+  const context = await browser.newContext({ viewport, bypassCSP: true });
+  if (cookie) {
+    const eq = cookie.indexOf("=");
+    await context.addCookies([{ name: cookie.slice(0, eq), value: cookie.slice(eq + 1), url: baseUrl }]);
+  }
+  return context;
+}
+
+const AXE_PATH = path.join(root, "node_modules", "axe-core", "axe.min.js");
+
+/** axe-core's serious and critical violations on the page as it is now, as readable lines. */
+export async function seriousAxeViolations(page: Page): Promise<string[]> {
+  await page.addScriptTag({ path: AXE_PATH });
+  const violations = await page.evaluate(async () => {
+    const axe = (window as unknown as { axe: { run: (ctx: Document, opts: object) => Promise<{ violations: Array<{ id: string; impact: string; help: string; nodes: Array<{ target: string[] }> }> }> } }).axe;
+    const result = await axe.run(document, {});
+    if (!(result as unknown as { passes: unknown[] }).passes.length) throw new Error("axe-core ran no checks");
+    return result.violations.filter((v) => v.impact === "serious" || v.impact === "critical").map((v) => `${v.impact} ${v.id}: ${v.help} (${v.nodes.slice(0, 3).map((n) => n.target.join(" ")).join("; ")})`);
+  });
+  return violations;
+}
+
+/** Sideways overflow of the page, in CSS pixels (0 when it fits its width). */
+export function horizontalOverflow(page: Page): Promise<number> {
+  return page.evaluate(() => Math.max(document.documentElement.scrollWidth, document.body.scrollWidth) - window.innerWidth);
+}
+
+/** The smallest text size in the page's SVG plots as drawn on screen, in CSS pixels (Infinity without plots). */
+export function smallestPlotText(page: Page): Promise<number> {
+  return page.evaluate(() => {
+    let smallest = Infinity;
+    for (const svg of document.querySelectorAll("svg")) {
+      const vb = (svg as SVGSVGElement).viewBox.baseVal;
+      const scale = vb && vb.width ? svg.getBoundingClientRect().width / vb.width : 1;
+      for (const t of svg.querySelectorAll("text")) smallest = Math.min(smallest, parseFloat(getComputedStyle(t).fontSize) * scale);
+    }
+    return smallest;
+  });
+}

@@ -4,7 +4,7 @@ import fs from "node:fs";
 import path from "node:path";
 import { afterAll, beforeAll, describe, expect, test } from "vitest";
 import { chromium, type Browser } from "playwright-core";
-import { CHROMIUM_ARGS, CHROMIUM_PATH, signIn, startAppServer } from "./harness";
+import { CHROMIUM_ARGS, CHROMIUM_PATH, seriousAxeViolations, signIn, startAppServer } from "./harness";
 
 const shots = path.resolve(import.meta.dirname, "..", "..", "test-results");
 let server: Awaited<ReturnType<typeof startAppServer>>;
@@ -26,7 +26,7 @@ afterAll(async () => {
 
 describe("browser", () => {
   test("the demo instructor signs in and sees the dashboard", async () => {
-    const page = await browser.newPage({ viewport: { width: 1280, height: 800 } });
+    const page = await browser.newPage({ viewport: { width: 1280, height: 800 }, bypassCSP: true });
     const offHost: string[] = [];
     page.on("request", (r) => {
       if (!r.url().startsWith(server.url) && !r.url().startsWith("data:")) offHost.push(r.url());
@@ -39,6 +39,7 @@ describe("browser", () => {
     await expect.poll(() => page.getByRole("alert").first().textContent()).toContain("do not match an account");
     expect(await page.getByLabel("E-mail").inputValue()).toBe("instructor@demo.ratebook.invalid");
     await page.screenshot({ path: path.join(shots, "sign-in-error.png") });
+    expect(await seriousAxeViolations(page)).toEqual([]);
 
     await page.getByLabel("Password").fill("demo-instructor-pass");
     await page.getByRole("button", { name: "Sign in" }).click();
@@ -65,6 +66,7 @@ describe("browser", () => {
     await expect.poll(() => page.getByText("A course needs at least one instructor", { exact: false }).count()).toBe(1);
     await expect.poll(() => mine.inputValue()).toBe("instructor");
     await page.screenshot({ path: path.join(shots, "course-instructor.png"), fullPage: true });
+    expect(await seriousAxeViolations(page)).toEqual([]);
 
     await page.getByRole("button", { name: "Sign out" }).click();
     await page.waitForURL(`${server.url}/sign-in`);

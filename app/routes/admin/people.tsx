@@ -55,7 +55,7 @@ export default function AdminPeople({ loaderData, actionData }: Route.ComponentP
             {loaderData.users.map((u) => (
               <tr key={u.id} className="border-b border-rule align-top">
                 <td className="px-3 py-2">{u.name}{u.id === loaderData.meId ? " (you)" : ""}</td>
-                <td className="px-3 py-2 break-all">{u.email}</td>
+                <td className="px-3 py-2 whitespace-nowrap">{u.email}</td>
                 <td className="px-3 py-2"><RoleSelect id={`urole-${u.id}`} label={`Account type of ${u.name}`} role={u.role} roles={loaderData.roles} labels={loaderData.labels} fields={{ userId: u.id }} /></td>
                 <td className="px-3 py-2 whitespace-nowrap">{u.active ? "● active" : "◔ invited"}</td>
                 <td className="px-3 py-2 whitespace-nowrap tabular-nums">{u.since}</td>

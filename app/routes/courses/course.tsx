@@ -126,7 +126,7 @@ export default function CoursePage({ loaderData, actionData }: Route.ComponentPr
                 {members.map((m) => (
                   <tr key={m.id} className="border-b border-rule align-top">
                     <td className="px-3 py-2">{m.name}{m.isMe ? " (you)" : ""}</td>
-                    {staffView ? <td className="px-3 py-2 break-all">{m.email}</td> : null}
+                    {staffView ? <td className="px-3 py-2 whitespace-nowrap">{m.email}</td> : null}
                     <td className="px-3 py-2">
                       {editable ? <RoleSelect id={`role-${m.id}`} label={`Role of ${m.name}`} role={m.role} roles={roles} fields={{ intent: "change-role", membershipId: m.id }} /> : m.role}
                     </td>
