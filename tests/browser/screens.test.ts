@@ -113,9 +113,11 @@ describe("keyboard alone", () => {
     await page.keyboard.press("Enter");
     await page.waitForURL(`${server.url}/fit-check`);
     await page.waitForLoadState("networkidle");
+    // Keys do nothing on a button whose page has not hydrated yet: wait for the route's module.
+    await page.waitForFunction(() => Boolean((window as unknown as { __reactRouterRouteModules?: Record<string, unknown> }).__reactRouterRouteModules?.["routes/tools/fit-check"]));
     await tabTo(page, /Fill in an invented example/);
     await page.keyboard.press("Enter");
-    await expect.poll(() => page.getByLabel("CA0").inputValue()).not.toBe("");
+    await expect.poll(() => page.getByLabel("CA0").inputValue(), { timeout: 5_000 }).not.toBe("");
     await tabTo(page, /^Fit$/, 80);
     await page.keyboard.press("Enter");
     await expect.poll(() => page.getByRole("heading", { name: "Result" }).count(), { timeout: 10_000 }).toBe(1);

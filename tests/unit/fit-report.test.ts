@@ -38,7 +38,7 @@ describe("fit report", () => {
     expect(built.problems).toEqual([]);
     const result = fit(built.request);
     const out = text(render(result, built.request.points as Array<[number, number]>));
-    expect(out).toMatch(/k, weighted straight-line fit \(used for marking\)/);
+    expect(out).toMatch(/k, (weighted straight-line|curve) fit \(used for marking\)/);
     expect(out).not.toMatch(/\d[eE][+-]?\d|10\^|\*|★/);
     expect(out).not.toMatch(/(^|[\s(])-\d/);
     for (const [, lo, hi] of out.matchAll(/CI (\S+) to (\S+)\)/g)) expect(lo).not.toBe(hi);
