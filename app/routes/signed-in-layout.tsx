@@ -40,7 +40,7 @@ function Shell({ data, children }: { data: LayoutData; children: ReactNode }) {
           <div className="ml-auto flex items-center gap-3 text-sm">
             <span>
               <NavLink to="/account" className="font-bold underline-offset-4 hover:underline" title="Your account">{user.displayName}</NavLink>{" "}
-              <span className="rounded border border-ink-soft px-2 py-0.5 text-ink-soft" title="Account type">{user.roleLabel}</span>
+              <span className="rounded border border-ink-soft px-2 py-0.5 whitespace-nowrap text-ink-soft" title="Account type">{user.roleLabel}</span>
             </span>
             <Form method="post" action="/sign-out">
               <button type="submit" className="rounded border border-ink-soft px-3 py-1 hover:bg-accent-soft">Sign out</button>
