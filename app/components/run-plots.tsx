@@ -8,9 +8,10 @@ export function RunPlotsView({ plots, timeUnit, valueLabel, concentrationUnit, m
   plots: RunPlots; timeUnit: string; valueLabel: string; concentrationUnit: string; measuresCA: boolean;
 }) {
   const t = `time / ${timeUnit}`;
-  // Below 640 px a plot scrolls inside its own box, so its text stays at 11 px or more.
+  // XYPlot draws at the width it is shown at, so its text stays at 11 px or more on a phone
+  // without a scrolling box (which keyboard users would have to reach).
   return (
-    <div className="grid gap-x-6 lg:grid-cols-2 [&>*]:min-w-0 [&>*]:overflow-x-auto [&_svg]:min-w-[640px] lg:[&_svg]:min-w-0">
+    <div className="grid gap-x-6 lg:grid-cols-2 [&>*]:min-w-0">
       <XYPlot title="Straight-line plot for this feed, with the fitted line" xLabel={t} yLabel={plots.line.yLabel} points={plots.line.points} curve={plots.line.curve} />
       <XYPlot title="Readings against time with the fitted curve" xLabel={t} yLabel={valueLabel} points={plots.readings.points} curve={plots.readings.curve} />
       {!measuresCA ? (
