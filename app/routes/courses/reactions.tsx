@@ -55,6 +55,28 @@ export async function action({ request, params }: Route.ActionArgs) {
   return { result: submission.reply({ resetForm: true }) as FormResult, saved: r.value.name };
 }
 
+const CALIBRATION_LABELS: Record<string, [string, string]> = {
+  conductivityStart: ["initial conductivity", "mS/cm"],
+  conductivityEnd: ["final conductivity", "mS/cm"],
+  epsilon: ["molar absorptivity", "L/(mol·cm)"],
+  pathCm: ["path length", "cm"],
+  absorbingSpecies: ["absorbing species", ""],
+  titrantMolL: ["titrant", "mol/L"],
+  aliquotMl: ["aliquot", "mL"],
+  titratedSpecies: ["species titrated", ""],
+  titrant: ["titrant is", ""],
+};
+
+function calibrationText(c: Record<string, unknown>) {
+  const parts = Object.entries(c)
+    .filter(([, v]) => v !== undefined && v !== "")
+    .map(([k, v]) => {
+      const [label, unit] = CALIBRATION_LABELS[k] ?? [k, ""];
+      return `${label} ${String(v)}${unit ? ` ${unit}` : ""}`;
+    });
+  return parts.join(", ") || "none";
+}
+
 const MEASURED_LABELS = { concentration: "concentration of A", conductivity: "conductivity", absorbance: "absorbance", titration: "titration" };
 
 export default function Reactions({ loaderData, actionData }: Route.ComponentProps) {
@@ -77,7 +99,7 @@ export default function Reactions({ loaderData, actionData }: Route.ComponentPro
                 <h3 className="text-lg font-bold">{s.name}</h3>
                 <p>{s.equation} → products; A = {s.speciesA}, B = {s.speciesB}; {s.law}</p>
                 <p className="text-sm">Reference: k = {s.kRef} {s.law.includes("CB") || s.law.includes("²") ? "L/(mol·s)" : "1/s"} at {s.TrefC} °C, Ea = {s.EaKJ} kJ/mol. {s.source}</p>
-                <p className="text-sm">Measured: {MEASURED_LABELS[s.measured]}; calibration {Object.entries(s.calibration).map(([k, x]) => `${k} ${x}`).join(", ") || "none"}.</p>
+                <p className="text-sm">Measured: {MEASURED_LABELS[s.measured]}; calibration: {calibrationText(s.calibration)}.</p>
                 <p className="text-sm">Stocks: {s.stocks.map((x) => `${x.label} ${x.concentrationMolL} mol/L`).join("; ") || "none listed"}.</p>
                 {s.hazards.length ? (
                   <ul className="mt-1 text-sm">
@@ -128,9 +150,9 @@ export default function Reactions({ loaderData, actionData }: Route.ComponentPro
                 {[0, 1].map((i) => (
                   <div key={i} className="mb-2 grid grid-cols-2 gap-x-3 border-b border-rule pb-2">
                     <Field label={`Reagent ${i + 1}`} name={`hazards[${i}].reagent`} defaultValue={v(`hazards[${i}].reagent`)} error={e(`hazards[${i}].reagent`)} />
-                    <Field label="Hazard statements" name={`hazards[${i}].hStatements`} hint="e.g. H290, H314" defaultValue={v(`hazards[${i}].hStatements`)} error={e(`hazards[${i}].hStatements`)} />
-                    <Field label="Pictograms" name={`hazards[${i}].pictograms`} hint="e.g. GHS05" defaultValue={v(`hazards[${i}].pictograms`)} error={e(`hazards[${i}].pictograms`)} />
-                    <Field label="Handling" name={`hazards[${i}].handling`} defaultValue={v(`hazards[${i}].handling`)} error={e(`hazards[${i}].handling`)} />
+                    <Field label={`Hazard statements (reagent ${i + 1})`} name={`hazards[${i}].hStatements`} hint="e.g. H290, H314" defaultValue={v(`hazards[${i}].hStatements`)} error={e(`hazards[${i}].hStatements`)} />
+                    <Field label={`Pictograms (reagent ${i + 1})`} name={`hazards[${i}].pictograms`} hint="e.g. GHS05" defaultValue={v(`hazards[${i}].pictograms`)} error={e(`hazards[${i}].pictograms`)} />
+                    <Field label={`Handling (reagent ${i + 1})`} name={`hazards[${i}].handling`} defaultValue={v(`hazards[${i}].handling`)} error={e(`hazards[${i}].handling`)} />
                   </div>
                 ))}
               </fieldset>

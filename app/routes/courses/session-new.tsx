@@ -242,7 +242,7 @@ export default function DesignPractical({ loaderData, actionData }: Route.Compon
                     <th className="px-2 py-2 text-right">To target</th>
                     <th className="px-2 py-2 text-right">Stocks A + B, water</th>
                     <th className="px-2 py-2">Predicted CA(t)</th>
-                    <th className="px-2 py-2">Checks</th>
+                    <th className="min-w-64 px-2 py-2">Checks</th>
                   </tr>
                 </thead>
                 <tbody>

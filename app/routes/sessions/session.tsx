@@ -119,7 +119,7 @@ export default function PracticalPage({ loaderData, actionData }: Route.Componen
                       <th className="px-2 py-2 text-right">k at T (L/(mol·s))</th>
                       <th className="px-2 py-2 text-right">To target</th>
                       <th className="px-2 py-2">Group</th>
-                      <th className="px-2 py-2">Checks</th>
+                      <th className="min-w-64 px-2 py-2">Checks</th>
                     </tr>
                   </thead>
                   <tbody>
