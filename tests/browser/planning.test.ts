@@ -63,7 +63,7 @@ describe("planning a practical in the browser", () => {
     await page.getByLabel("Ea (kJ/mol)").fill("40");
     await page.getByLabel("Initial conductivity (mS/cm)").fill("2.5");
     await page.getByLabel("Final conductivity (mS/cm)").fill("1.0");
-    await page.getByLabel("Reagent 1").fill("sodium hydroxide solution, 0.1 mol/L");
+    await page.getByLabel("Reagent 1", { exact: true }).fill("sodium hydroxide solution, 0.1 mol/L");
     await page.getByLabel("Hazard statements").first().fill("H290, H314");
     await page.getByLabel("Pictograms").first().fill("GHS05");
     await page.getByRole("button", { name: "Add to the library" }).click();
