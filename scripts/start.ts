@@ -35,8 +35,8 @@ if (!process.env.SMTP_URL) {
 }
 // The demo runs the job-queue worker (e-mail, marking) in this process; production runs
 // `npm run worker` on machines of its own.
-const { startWorker } = await import("../app/.server/jobs/worker.server");
-const worker = await startWorker();
+const { keepWorkerRunning } = await import("../app/.server/jobs/worker.server");
+const worker = await keepWorkerRunning();
 console.log("[jobs] worker running in this process");
 
 // The local demo is served over plain http, where a Secure cookie would never come back.

@@ -1,9 +1,9 @@
 // `npm run worker` : a job-queue worker on its own (production: run it on worker machines with
 // the same DATABASE_URL, SMTP_URL, MAIL_FROM and APP_URL as the app servers). Stops cleanly on
-// SIGINT/SIGTERM, finishing the jobs it holds.
-import { startWorker } from "../app/.server/jobs/worker.server";
+// SIGINT/SIGTERM, finishing the jobs it holds; a database restart does not stop it.
+import { keepWorkerRunning } from "../app/.server/jobs/worker.server";
 const concurrency = Number(process.env.WORKER_CONCURRENCY ?? 4);
-const runner = await startWorker({ concurrency });
+const runner = await keepWorkerRunning({ concurrency });
 console.log(`[jobs] worker running (concurrency ${concurrency}); Ctrl+C stops it`);
 for (const sig of ["SIGINT", "SIGTERM"] as const) {
   process.on(sig, async () => {

@@ -206,6 +206,25 @@ async function accepts(port: number): Promise<boolean> {
   return seen.kind === "cluster" && sameDir(seen.dataDirectory, clusterDir);
 }
 
+/** The postgres options the cluster starts with. */
+function serverOptions(port: number): string {
+  // The socket folder is passed as its own -c setting, quoted, so a path with spaces survives.
+  return `-p ${port} -c listen_addresses=127.0.0.1 -c unix_socket_directories='${socketDir.replace(/'/g, "''")}' -c synchronous_commit=off`;
+}
+
+/**
+ * The command line of `pg_ctl stop` or `pg_ctl start` for this cluster (as root, run as
+ * `postgres`), for callers that must not block while it runs (the upload benchmark's restart).
+ */
+export function clusterControl(action: "stop" | "start"): { cmd: string; argv: string[] } {
+  const exe = path.join(serverBin(), "pg_ctl");
+  const args =
+    action === "stop"
+      ? ["stop", "-w", "-D", clusterDir, "-m", "fast"]
+      : ["start", "-w", "-t", "60", "-D", clusterDir, "-l", logFile, "-o", serverOptions(clusterPort())];
+  return isRoot ? { cmd: "runuser", argv: ["-u", "postgres", "--", exe, ...args] } : { cmd: exe, argv: args };
+}
+
 /** Starts this project's cluster (creating it on first use) and returns its port. */
 export async function startLocalCluster(): Promise<number> {
   const known = clusterPort();
@@ -227,8 +246,7 @@ export async function startLocalCluster(): Promise<number> {
   chownToPostgres(socketDir);
   if (!fs.existsSync(logFile)) fs.writeFileSync(logFile, "");
   chownToPostgres(logFile);
-  // The socket folder is passed as its own -c setting, quoted, so a path with spaces survives.
-  const opts = `-p ${port} -c listen_addresses=127.0.0.1 -c unix_socket_directories='${socketDir.replace(/'/g, "''")}' -c synchronous_commit=off`;
+  const opts = serverOptions(port);
   console.log(`[db] starting PostgreSQL on 127.0.0.1:${port} (data in ${clusterDir})`);
   const res = runPg(bin, "pg_ctl", ["start", "-w", "-t", "60", "-D", clusterDir, "-l", logFile, "-o", opts], { allowFail: true });
   for (let i = 0; i < 60; i++) {
@@ -258,6 +276,12 @@ async function adminQuery<T>(fn: (c: pg.Client) => Promise<T>): Promise<T> {
   } finally {
     await client.end();
   }
+}
+
+/** Drops one of this cluster's databases (the benchmarks clean up after themselves). */
+export async function dropDatabase(name: string) {
+  if (!/^[a-z_][a-z0-9_]*$/.test(name)) throw new Error(`unsafe database name: ${name}`);
+  await adminQuery((c) => c.query(`drop database if exists ${name} with (force)`));
 }
 
 export async function ensureDatabase(name: string, opts: { reset?: boolean } = {}) {

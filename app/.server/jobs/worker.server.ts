@@ -1,12 +1,16 @@
 // Running the queue. `npm start` runs a worker inside its own process for the demo; in
 // production app servers only add jobs and workers run `npm run worker` on machines of their
 // own. Tests drain the queue with runJobsUntilIdle().
-import { run, runOnce, type Runner } from "graphile-worker";
+import { EventEmitter } from "node:events";
+import { run, runOnce, type Runner, type WorkerEvents } from "graphile-worker";
 import { getSequelize } from "../db/sequelize.server";
 import { connectionStringOf, quietWorkerLogger } from "./connection.server";
+import { keepRunning, type KeptWorker } from "./supervisor.server";
 import { taskList } from "./tasks.server";
 
-export async function startWorker(options: { concurrency?: number; pollInterval?: number } = {}): Promise<Runner> {
+export async function startWorker(options: { concurrency?: number; pollInterval?: number; workerIds?: Set<string> } = {}): Promise<Runner> {
+  const events = new EventEmitter() as WorkerEvents;
+  events.on("worker:create", ({ worker }) => options.workerIds?.add(worker.workerId));
   return run({
     connectionString: connectionStringOf(getSequelize()),
     taskList,
@@ -14,6 +18,22 @@ export async function startWorker(options: { concurrency?: number; pollInterval?
     pollInterval: options.pollInterval ?? 2000,
     noHandleSignals: true,
     logger: quietWorkerLogger,
+    events,
+  });
+}
+
+/**
+ * A worker that survives a database restart (see supervisor.server.ts): `npm start` and
+ * `npm run worker` use this one.
+ */
+export function keepWorkerRunning(options: { concurrency?: number; pollInterval?: number } = {}): Promise<KeptWorker<Runner>> {
+  return keepRunning({
+    start: (workerIds) => startWorker({ ...options, workerIds }),
+    unlock: async (workerIds) => {
+      await getSequelize().query("select graphile_worker.force_unlock_workers($1::text[])", { bind: [workerIds] });
+    },
+    sleep: (ms) => new Promise((r) => setTimeout(r, ms)),
+    log: (message) => console.error(message),
   });
 }
 
