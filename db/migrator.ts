@@ -10,6 +10,7 @@ import * as m0010 from "./migrations/0010-user-sessions";
 import * as m0011 from "./migrations/0011-account-roles-course-archive";
 import * as m0015 from "./migrations/0015-submissions";
 import * as m0020 from "./migrations/0020-api-tokens";
+import * as m0021 from "./migrations/0021-gradebook";
 
 const migrations = [
   { name: "0001-foundation", ...m0001 },
@@ -20,6 +21,7 @@ const migrations = [
   { name: "0011-account-roles-course-archive", ...m0011 },
   { name: "0015-submissions", ...m0015 },
   { name: "0020-api-tokens", ...m0020 },
+  { name: "0021-gradebook", ...m0021 },
 ];
 
 export function createMigrator(sequelize: Sequelize, opts: { quiet?: boolean } = {}) {

@@ -83,6 +83,9 @@ export const ACCESS: Record<string, RouteAccess> = {
 
   "routes/api/course-sessions.ts": { url: "/api/courses/{course}/sessions", get: [401, 200, 200, 200, 200, 403], post: API_NO_METHOD },
   "routes/api/session.ts": { url: "/api/sessions/{session}", get: [401, 200, 200, 200, 200, 403], post: API_NO_METHOD },
+  // Gradebooks: the course's staff read them; students never (403, a known resource).
+  "routes/api/session-gradebook.ts": { url: "/api/sessions/{session}/gradebook", get: [401, 200, 200, 200, 403, 403], post: API_NO_METHOD },
+  "routes/api/course-gradebook.ts": { url: "/api/courses/{course}/gradebook", get: [401, 200, 200, 200, 403, 403], post: API_NO_METHOD },
   "routes/api/feed-check.ts": { url: "/api/feed-check", get: API_NO_METHOD, post: [401, 400, 400, 400, 403, 403] },
   // Uploads, feedback and review: staff of the course and the group's own student; another
   // course's student is refused (403: not in the course). A page upload needs multipart (415).

@@ -54,6 +54,8 @@ export class LabSession extends Model<InferAttributes<LabSession>, InferCreation
   declare status: CreationOptional<SessionStatus>;
   declare notifiedAt: CreationOptional<Date | null>;
   declare marksReleasedAt: CreationOptional<Date | null>;
+  /** weight of this practical's mark in the course total (0 leaves it out) */
+  declare gradeWeight: CreationOptional<number>;
   declare createdAt: CreationOptional<Date>;
   declare updatedAt: CreationOptional<Date>;
   declare benches?: Bench[];
@@ -95,6 +97,7 @@ LabSession.init(
     status: { type: DataTypes.STRING(20), allowNull: false, defaultValue: "draft" },
     notifiedAt: { type: DataTypes.DATE, allowNull: true },
     marksReleasedAt: { type: DataTypes.DATE, allowNull: true },
+    gradeWeight: { type: DataTypes.DOUBLE, allowNull: false, defaultValue: 1 },
     createdAt: DataTypes.DATE,
     updatedAt: DataTypes.DATE,
   },

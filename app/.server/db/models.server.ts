@@ -38,6 +38,8 @@ export class Course extends Model<InferAttributes<Course>, InferCreationAttribut
   declare title: string;
   declare term: string;
   declare archivedAt: CreationOptional<Date | null>;
+  /** gradebook: a practical with no mark counts 0 in the total (else it is left out of it) */
+  declare missingCountsAsZero: CreationOptional<boolean>;
   declare createdAt: CreationOptional<Date>;
   declare updatedAt: CreationOptional<Date>;
 }
@@ -113,6 +115,7 @@ Course.init(
     title: { type: DataTypes.STRING(200), allowNull: false },
     term: { type: DataTypes.STRING(60), allowNull: false, defaultValue: "" },
     archivedAt: { type: DataTypes.DATE, allowNull: true },
+    missingCountsAsZero: { type: DataTypes.BOOLEAN, allowNull: false, defaultValue: false },
     createdAt: DataTypes.DATE,
     updatedAt: DataTypes.DATE,
   },

@@ -6,8 +6,9 @@ import { corePart } from "./core.server";
 import { tokensPart } from "./tokens.server";
 import { planningPart } from "./planning.server";
 import { submissionsPart } from "./submissions.server";
+import { gradebookPart } from "./gradebook.server";
 
-const parts: ApiPart[] = [corePart, tokensPart, planningPart, submissionsPart];
+const parts: ApiPart[] = [corePart, tokensPart, planningPart, submissionsPart, gradebookPart];
 
 export function openApiDocument() {
   const paths: Record<string, Record<string, unknown>> = {};

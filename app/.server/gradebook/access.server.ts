@@ -1,0 +1,40 @@
+// Who may read a gradebook: the course's instructors and demonstrators (and admins). Students
+// never: 403 for a course they are in, as for any staff-only page.
+import { data } from "react-router";
+import { QueryTypes } from "sequelize";
+import { getSequelize } from "../db/sequelize.server";
+import type { User } from "../db/models.server";
+import { requireSessionStaff } from "../submissions/context.server";
+
+function deny(status: 403 | 404, message: string, api: boolean): never {
+  if (api) throw Response.json({ error: message }, { status });
+  throw data({ message }, { status });
+}
+
+/** The course id when the caller may read its gradebook; one query (the API path is benchmarked). */
+export async function requireCourseGradebook(user: User, courseId: number | null, api: boolean): Promise<number> {
+  if (courseId === null) deny(404, "There is no course with this id.", api);
+  const [row] = await getSequelize().query<{ id: number; role: string | null }>(
+    `select c.id, cm.role from courses c left join course_memberships cm on cm.course_id = c.id and cm.user_id = $2 where c.id = $1`,
+    { bind: [courseId, user.id], type: QueryTypes.SELECT },
+  );
+  if (!row) deny(404, "There is no course with this id.", api);
+  if (user.role === "admin") return row.id;
+  if (!row.role) deny(403, "You are not a member of this course.", api);
+  if (row.role !== "instructor" && row.role !== "demonstrator") deny(403, "Gradebooks are for the course's instructors and demonstrators.", api);
+  return row.id;
+}
+
+export function requireSessionGradebook(user: User, sessionId: number, api: boolean) {
+  return requireSessionStaff(user, sessionId, api);
+}
+
+export interface QueryProblem {
+  path: string;
+  message: string;
+}
+
+/** 400 with the reasons, in the API's error shape. */
+export function badQuery(errors: QueryProblem[]): never {
+  throw Response.json({ errors }, { status: 400 });
+}
