@@ -8,6 +8,7 @@ import { loader as apiSession } from "~/routes/api/session-gradebook";
 import { loader as apiCourse } from "~/routes/api/course-gradebook";
 import { AuditEntry, CourseMembership, User } from "~/.server/db/models.server";
 import { Bench, LabSession } from "~/.server/db/lab-sessions.server";
+import { GroupMember } from "~/.server/db/groups.server";
 import { Submission } from "~/.server/db/submissions.server";
 import { runJobsUntilIdle } from "~/.server/jobs/worker.server";
 import { closeSequelize } from "~/.server/db/sequelize.server";
@@ -197,6 +198,40 @@ describe("course gradebook", () => {
     expect((await getSession(99999999, staff)).status).toBe(404);
     expect((await getCourse(Number.NaN, staff)).status).toBe(404);
     expect((await call(apiCourse, request(`/api/courses/${p.course.id}/gradebook`), { courseId: String(p.course.id) })).status).toBe(401);
+  });
+});
+
+describe("kept gradebooks follow every change", () => {
+  test("a mark, a name, a group move and a passing deadline show on the next read", async () => {
+    const read = async () => Object.fromEntries((await (await getCourse(p.course.id, staff)).json()).rows.map((r: any) => [r.userId, r]));
+    const s2 = p.students[1];
+    expect((await read())[s2.id].marks[p.session.id]).toBe(70);
+    // An override on the counted version (outside any request, straight through the model).
+    const latest = await Submission.findOne({ where: { groupId: p.groups[1].id, sessionId: p.session.id, version: 2 } });
+    await latest!.update({ overrideMark: 65, overrideReason: "test" });
+    expect((await read())[s2.id].marks[p.session.id]).toBe(65);
+    await User.update({ displayName: "Student 2 GB-T renamed" }, { where: { id: s2.id }, individualHooks: false });
+    expect((await read())[s2.id].name).toBe("Student 2 GB-T renamed");
+    // The practical gradebook sees the override too.
+    const rows = (await (await getSession(p.session.id, staff)).json()).rows;
+    expect(rows.find((r: any) => r.group === "G2")).toMatchObject({ mark: 65, overridden: true });
+    // Student 3 moves to group 1: their marks become group 1's (100 and 80).
+    const s3 = p.students[2];
+    await GroupMember.update({ groupId: p.groups[0].id }, { where: { userId: s3.id, courseId: p.course.id } });
+    expect((await read())[s3.id]).toMatchObject({ group: "G1", marks: { [p.session.id]: 100, [second.id]: 80 } });
+    await GroupMember.update({ groupId: p.groups[2].id }, { where: { userId: s3.id, courseId: p.course.id } });
+    expect((await read())[s3.id].marks[p.session.id]).toBe(40);
+    await latest!.update({ overrideMark: null, overrideReason: null });
+    await User.update({ displayName: "Student 2 GB-T" }, { where: { id: s2.id } });
+
+    // A deadline a moment away: practical 1 is not due now, and is due after it passes.
+    await p.session.update({ deadline: new Date(Date.now() + 1500) });
+    const before = (await (await getCourse(p.course.id, staff)).json()).sessions.find((s: any) => s.id === p.session.id);
+    expect(before.due).toBe(false);
+    await new Promise((r) => setTimeout(r, 1700));
+    const after = (await (await getCourse(p.course.id, staff)).json()).sessions.find((s: any) => s.id === p.session.id);
+    expect(after.due).toBe(true);
+    await p.session.update({ deadline: null });
   });
 });
 

@@ -11,18 +11,31 @@ function deny(status: 403 | 404, message: string, api: boolean): never {
   throw data({ message }, { status });
 }
 
-/** The course id when the caller may read its gradebook; one query (the API path is benchmarked). */
+/** The course id when the caller may read its gradebook. */
 export async function requireCourseGradebook(user: User, courseId: number | null, api: boolean): Promise<number> {
+  return (await requireCourseGradebookAt(user, courseId, api)).courseId;
+}
+
+/**
+ * The same check, with the course's gradebook version read in the same query (the API path is
+ * benchmarked at hundreds of requests a second: one round trip fewer).
+ */
+export async function requireCourseGradebookAt(user: User, courseId: number | null, api: boolean): Promise<{ courseId: number; version: string }> {
   if (courseId === null) deny(404, "There is no course with this id.", api);
-  const [row] = await getSequelize().query<{ id: number; role: string | null }>(
-    `select c.id, cm.role from courses c left join course_memberships cm on cm.course_id = c.id and cm.user_id = $2 where c.id = $1`,
+  const [row] = await getSequelize().query<{ id: number; role: string | null; version: string }>(
+    `select c.id, cm.role, coalesce(gv.version, 0)::text as version
+       from courses c
+       left join course_memberships cm on cm.course_id = c.id and cm.user_id = $2
+       left join gradebook_versions gv on gv.course_id = c.id
+      where c.id = $1`,
     { bind: [courseId, user.id], type: QueryTypes.SELECT },
   );
   if (!row) deny(404, "There is no course with this id.", api);
-  if (user.role === "admin") return row.id;
+  const ok = { courseId: row.id, version: row.version };
+  if (user.role === "admin") return ok;
   if (!row.role) deny(403, "You are not a member of this course.", api);
   if (row.role !== "instructor" && row.role !== "demonstrator") deny(403, "Gradebooks are for the course's instructors and demonstrators.", api);
-  return row.id;
+  return ok;
 }
 
 export function requireSessionGradebook(user: User, sessionId: number, api: boolean) {

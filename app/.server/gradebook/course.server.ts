@@ -5,6 +5,7 @@ import { QueryTypes } from "sequelize";
 import { getSequelize } from "../db/sequelize.server";
 import { courseTotal, type PracticalForTotal } from "~/lib/gradebook/course-total";
 import { markOf } from "./session.server";
+import { cached, courseVersion } from "./cache.server";
 
 export interface CourseGradebookSession {
   id: number;
@@ -14,6 +15,7 @@ export interface CourseGradebookSession {
   weight: number;
   /** closed, marks released or past the deadline: missing work there is missing */
   due: boolean;
+  deadline: string | null;
   released: boolean;
   benchCount: number;
   marked: number;
@@ -65,7 +67,22 @@ select cm.user_id, cm.student_number, u.display_name, u.email, gm.group_id, g.na
  where cm.course_id = $1 and cm.role = 'student'
  order by u.display_name, cm.user_id`;
 
-export async function courseGradebook(courseId: number, now = new Date()): Promise<CourseGradebook | null> {
+/**
+ * The course's gradebook (kept while nothing in it changes), or null when there is no such course.
+ * Pass the version when the caller has just read it (requireCourseGradebookAt); else it is read here.
+ */
+export async function courseGradebook(courseId: number, knownVersion?: string): Promise<CourseGradebook | null> {
+  const version = knownVersion ?? (await courseVersion(courseId));
+  return cached(`course:${courseId}`, version, async () => {
+    const now = new Date();
+    const book = await buildCourseGradebook(courseId, now);
+    // A deadline that passes turns a practical due: build again then.
+    const next = (book?.sessions ?? []).filter((s) => !s.due && s.deadline !== null).map((s) => Date.parse(s.deadline!));
+    return { value: book, validUntil: next.length ? Math.min(...next) : Infinity };
+  });
+}
+
+export async function buildCourseGradebook(courseId: number, now = new Date()): Promise<CourseGradebook | null> {
   const sequelize = getSequelize();
   const q = (sql: string) => sequelize.query<Record<string, any>>(sql, { bind: [courseId], type: QueryTypes.SELECT });
   const [[course], sessions, marks, students] = await Promise.all([q(COURSE), q(SESSIONS), q(MARKS), q(STUDENTS)]);
@@ -87,6 +104,7 @@ export async function courseGradebook(courseId: number, now = new Date()): Promi
     const due = s.status === "closed" || released || (s.deadline !== null && new Date(s.deadline) <= now);
     return {
       id: s.id, title: s.title, date: s.date, status: s.status, weight: s.grade_weight, due, released,
+      deadline: s.deadline ? new Date(s.deadline).toISOString() : null,
       benchCount: s.bench_count, marked: markedCount.get(s.id) ?? 0,
     };
   });

@@ -8,6 +8,7 @@ import { LabSession } from "../db/lab-sessions.server";
 import { ReactionSystem } from "../db/reaction-systems.server";
 import { Course } from "../db/models.server";
 import { rateConstantAt } from "~/lib/kinetics/arrhenius";
+import { cached, sessionCourseVersion } from "./cache.server";
 
 export interface SessionGradebookRow {
   groupId: number;
@@ -79,8 +80,14 @@ export function markOf(status: string | null, autoMark: number | null, overrideM
   return status === "marked" ? autoMark ?? null : null;
 }
 
-/** The practical's gradebook, or null when there is no such practical. Staff only: the caller checks. */
+/** The practical's gradebook (kept while nothing in its course changes), or null when there is no such practical. Staff only: the caller checks. */
 export async function sessionGradebook(sessionId: number): Promise<SessionGradebook | null> {
+  const at = await sessionCourseVersion(sessionId);
+  if (!at) return null;
+  return cached(`session:${sessionId}`, at.version, async () => ({ value: await buildSessionGradebook(sessionId), validUntil: Infinity }));
+}
+
+export async function buildSessionGradebook(sessionId: number): Promise<SessionGradebook | null> {
   const session = await LabSession.findByPk(sessionId, {
     include: [{ model: ReactionSystem, as: "reactionSystem" }, { model: Course, as: "course" }],
   });

@@ -80,6 +80,7 @@ export const gradebookPart: ApiPart = {
               id: { type: "integer" }, title: { type: "string" }, date: { type: "string", format: "date" }, status: { type: "string" },
               weight: { ...num, description: "weight in the total; 0 leaves the practical out" },
               due: { type: "boolean", description: "closed, released or past its deadline" },
+              deadline: { type: ["string", "null"], format: "date-time" },
               released: { type: "boolean" }, benchCount: { type: "integer" }, marked: { type: "integer" },
             },
           },
