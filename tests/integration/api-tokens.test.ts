@@ -8,6 +8,7 @@ import { action as tokenAction } from "~/routes/api/token";
 import { loader as meLoader } from "~/routes/api/me";
 import { loader as coursesLoader } from "~/routes/api/courses";
 import { action as fitAction } from "~/routes/api/fit";
+import { loader as courseGradebook } from "~/routes/api/course-gradebook";
 import { loader as dashboardLoader } from "~/routes/dashboard";
 import { action as accountAction, loader as accountLoader } from "~/routes/account";
 import { ApiToken } from "~/.server/db/api-token.server";
@@ -147,6 +148,14 @@ describe("API tokens", () => {
     expect(list.every((c: any) => c.role === "student")).toBe(true);
     const fit: Response = await call(fitAction, apiRequest("/api/fit", { bearer: body.token, json: {} }));
     expect(fit.status).toBe(403);
+    // The gradebook is staff only: the student's own course's gradebook is refused, the instructor's token reads it.
+    const courseId = String(list[0].id);
+    const asStudent: Response = await call(courseGradebook, apiRequest(`/api/courses/${courseId}/gradebook`, { bearer: body.token }), { courseId });
+    expect(asStudent.status).toBe(403);
+    const staff = await makeToken(await demoCookie("instructor"));
+    const asStaff: Response = await call(courseGradebook, apiRequest(`/api/courses/${courseId}/gradebook`, { bearer: staff.body.token }), { courseId });
+    expect(asStaff.status).toBe(200);
+    expect((await asStaff.json()).rows.some((r: any) => r.email === "student@demo.ratebook.invalid")).toBe(true);
   });
 
   test("the account page makes a token, shows it once, lists it without it, and revokes it", async () => {
