@@ -4,6 +4,7 @@ import { data, redirect } from "react-router";
 import { sessionOf } from "./session.server";
 import { acceptsBearer, bearerTokenOf, personOfToken } from "./api-tokens.server";
 import { Course, CourseMembership, User, ROLE_LABELS, type CourseRole, type Role } from "./db/models.server";
+import { pathId } from "./ids.server";
 
 interface GuardOptions {
   roles?: readonly Role[];
@@ -134,6 +135,20 @@ export async function requireCourseRole(
     deny(403, `This needs the course role ${roles.join(" or ")}; yours is ${membership.role}.`, api);
   }
   return membership.role;
+}
+
+export const NO_COURSE = "There is no course at this address.";
+
+/**
+ * A course page's check in one step: the signed-in person, the course from the path (404 when
+ * there is none) and their role in it (403 unless one of `roles`; admins act as instructors).
+ */
+export async function requireCourseFromPath(request: Request, rawCourseId: string | undefined, roles: readonly CourseRole[]) {
+  const user = await requireUser(request);
+  const course = await Course.findByPk(pathId(rawCourseId, NO_COURSE));
+  if (!course) throw data({ message: NO_COURSE }, { status: 404 });
+  const role = await requireCourseRole(user, course.id, roles);
+  return { user, course, role };
 }
 
 /** Only relative paths inside the app, so a crafted link cannot send people elsewhere. */

@@ -1,6 +1,6 @@
 import { data, Form, useNavigation } from "react-router";
 import type { Route } from "./+types/course";
-import { ownCourseRole, requireCourseRole, requireUser } from "~/.server/guards.server";
+import { NO_COURSE, ownCourseRole, requireCourseRole, requireUser } from "~/.server/guards.server";
 import { courseMembers, removeMember, setCourseArchived } from "~/.server/courses.server";
 import { changeMembershipRole, inviteToCourse, type FieldErrors } from "~/.server/people.server";
 import { Course, COURSE_ROLES } from "~/.server/db/models.server";
@@ -13,8 +13,6 @@ import { courseSessions } from "~/.server/planning/sessions.server";
 import { CoursePlanning } from "~/components/planning/course-planning";
 
 export const meta: Route.MetaFunction = ({ data }) => [{ title: `${data?.course.code ?? "Course"} · Ratebook` }];
-
-const NO_COURSE = "There is no course at this address.";
 
 async function loadCourse(courseId: string) {
   const course = await Course.findByPk(pathId(courseId, NO_COURSE));

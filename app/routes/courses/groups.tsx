@@ -2,33 +2,24 @@
 // chosen size from the students in none (instructors; demonstrators may look).
 import { data, Form, Link, useNavigation } from "react-router";
 import type { Route } from "./+types/groups";
-import { requireCourseRole, requireUser } from "~/.server/guards.server";
-import { formId, pathId } from "~/.server/ids.server";
+import { requireCourseFromPath } from "~/.server/guards.server";
+import { formId } from "~/.server/ids.server";
 import { readForm } from "~/.server/body.server";
-import { Course } from "~/.server/db/models.server";
 import { courseGroups, createGroup, deleteGroup, formGroups, moveStudent, renameGroup } from "~/.server/planning/groups.server";
 import { Button, Field, FormMessage } from "~/components/form";
 import { PageTitle } from "~/components/page";
 
 export const meta: Route.MetaFunction = () => [{ title: "Groups · Ratebook" }];
 
-async function load(request: Request, raw: string, roles: ("instructor" | "demonstrator")[]) {
-  const user = await requireUser(request);
-  const course = await Course.findByPk(pathId(raw));
-  if (!course) throw data({ message: "There is no course at this address." }, { status: 404 });
-  const role = await requireCourseRole(user, course.id, roles);
-  return { user, course, role };
-}
-
 export async function loader({ request, params }: Route.LoaderArgs) {
-  const { course, role } = await load(request, params.courseId, ["instructor", "demonstrator"]);
+  const { course, role } = await requireCourseFromPath(request, params.courseId, ["instructor", "demonstrator"]);
   return { course: { id: course.id, code: course.code }, canEdit: role === "instructor", ...(await courseGroups(course.id)) };
 }
 
 type ActionData = { intent: string; ok: boolean; field: string; message: string; groupId: number | null };
 
 export async function action({ request, params }: Route.ActionArgs) {
-  const { user, course } = await load(request, params.courseId, ["instructor"]);
+  const { user, course } = await requireCourseFromPath(request, params.courseId, ["instructor"]);
   const form = await readForm(request);
   const intent = String(form.get("intent") ?? "");
   const name = String(form.get("name") ?? "").trim();

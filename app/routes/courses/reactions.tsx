@@ -1,10 +1,8 @@
 // The course's reaction-system library: what is there, and a form to add one (instructors).
 import { data, Form, useNavigation } from "react-router";
 import type { Route } from "./+types/reactions";
-import { requireCourseRole, requireUser } from "~/.server/guards.server";
-import { pathId } from "~/.server/ids.server";
+import { requireCourseFromPath } from "~/.server/guards.server";
 import { readForm } from "~/.server/body.server";
-import { Course } from "~/.server/db/models.server";
 import { createReactionSystem, parseReactionForm, reactionSystemsOf } from "~/.server/planning/reactions.server";
 import { fieldError, typed, type FormResult } from "~/lib/form-result";
 import { PICTOGRAMS } from "~/lib/planning/hazards";
@@ -13,16 +11,8 @@ import { PageTitle } from "~/components/page";
 
 export const meta: Route.MetaFunction = () => [{ title: "Reaction systems · Ratebook" }];
 
-async function load(request: Request, raw: string, roles: ("instructor" | "demonstrator")[]) {
-  const user = await requireUser(request);
-  const course = await Course.findByPk(pathId(raw));
-  if (!course) throw data({ message: "There is no course at this address." }, { status: 404 });
-  const role = await requireCourseRole(user, course.id, roles);
-  return { user, course, role };
-}
-
 export async function loader({ request, params }: Route.LoaderArgs) {
-  const { course, role } = await load(request, params.courseId, ["instructor", "demonstrator"]);
+  const { course, role } = await requireCourseFromPath(request, params.courseId, ["instructor", "demonstrator"]);
   const systems = await reactionSystemsOf(course.id);
   return {
     course: { id: course.id, code: course.code },
@@ -47,7 +37,7 @@ export async function loader({ request, params }: Route.LoaderArgs) {
 }
 
 export async function action({ request, params }: Route.ActionArgs) {
-  const { user, course } = await load(request, params.courseId, ["instructor"]);
+  const { user, course } = await requireCourseFromPath(request, params.courseId, ["instructor"]);
   const submission = parseReactionForm(await readForm(request));
   if (submission.status !== "success") return data<{ result: FormResult; saved: string | null }>({ result: submission.reply(), saved: null }, { status: 400 });
   const r = await createReactionSystem(user, course.id, submission.value);

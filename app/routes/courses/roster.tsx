@@ -4,10 +4,8 @@
 import { data, Form, Link, useNavigation } from "react-router";
 import { parseFormData, MaxFileSizeExceededError, MaxFilesExceededError, type FileUpload } from "@remix-run/form-data-parser";
 import type { Route } from "./+types/roster";
-import { requireCourseRole, requireUser } from "~/.server/guards.server";
-import { pathId } from "~/.server/ids.server";
+import { requireCourseFromPath } from "~/.server/guards.server";
 import { readForm } from "~/.server/body.server";
-import { Course } from "~/.server/db/models.server";
 import { ROSTER_MAX_BYTES, RosterFileError, importRoster, previewRoster, readTable, rosterRows, type PreviewRow, type RosterRow } from "~/.server/planning/roster.server";
 import { inviteToCourse } from "~/.server/people.server";
 import { Button, Field, FormMessage } from "~/components/form";
@@ -15,16 +13,8 @@ import { PageTitle, TableBox } from "~/components/page";
 
 export const meta: Route.MetaFunction = () => [{ title: "Roster · Ratebook" }];
 
-async function load(request: Request, raw: string) {
-  const user = await requireUser(request);
-  const course = await Course.findByPk(pathId(raw));
-  if (!course) throw data({ message: "There is no course at this address." }, { status: 404 });
-  await requireCourseRole(user, course.id, ["instructor"]);
-  return { user, course };
-}
-
 export async function loader({ request, params }: Route.LoaderArgs) {
-  const { course } = await load(request, params.courseId);
+  const { course } = await requireCourseFromPath(request, params.courseId, ["instructor"]);
   return { course: { id: course.id, code: course.code, title: course.title }, maxBytes: ROSTER_MAX_BYTES };
 }
 
@@ -35,7 +25,7 @@ type ActionData =
   | { kind: "demonstrator"; ok: boolean; message: string; errors: Record<string, string | undefined>; email: string };
 
 export async function action({ request, params }: Route.ActionArgs) {
-  const { user, course } = await load(request, params.courseId);
+  const { user, course } = await requireCourseFromPath(request, params.courseId, ["instructor"]);
   const type = request.headers.get("content-type") ?? "";
   if (type.startsWith("multipart/form-data")) {
     let upload: { name: string; bytes: Uint8Array } | null = null;

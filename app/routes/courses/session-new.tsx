@@ -3,10 +3,8 @@
 import { useEffect, useRef, useState } from "react";
 import { data, Form, redirect, useFetcher, useNavigation } from "react-router";
 import type { Route } from "./+types/session-new";
-import { requireCourseRole, requireUser } from "~/.server/guards.server";
-import { pathId } from "~/.server/ids.server";
+import { requireCourseFromPath } from "~/.server/guards.server";
 import { readForm } from "~/.server/body.server";
-import { Course } from "~/.server/db/models.server";
 import { reactionSystemsOf } from "~/.server/planning/reactions.server";
 import {
   DEFAULT_RUBRIC,
@@ -28,16 +26,8 @@ import { CurveThumb } from "~/components/planning/curve-thumb";
 
 export const meta: Route.MetaFunction = () => [{ title: "Design a practical · Ratebook" }];
 
-async function load(request: Request, courseIdRaw: string) {
-  const user = await requireUser(request);
-  const course = await Course.findByPk(pathId(courseIdRaw));
-  if (!course) throw data({ message: "There is no course at this address." }, { status: 404 });
-  await requireCourseRole(user, course.id, ["instructor"]);
-  return { user, course };
-}
-
 export async function loader({ request, params }: Route.LoaderArgs) {
-  const { course } = await load(request, params.courseId);
+  const { course } = await requireCourseFromPath(request, params.courseId, ["instructor"]);
   const systems = await reactionSystemsOf(course.id);
   return {
     course: { id: course.id, code: course.code, title: course.title },
@@ -66,7 +56,7 @@ type Row = BenchFeed & { prediction: BenchPrediction | null };
 type ActionData = { result: FormResult; rows: Row[] | null; proposal: number; formErrors: string[] };
 
 export async function action({ request, params }: Route.ActionArgs) {
-  const { user, course } = await load(request, params.courseId);
+  const { user, course } = await requireCourseFromPath(request, params.courseId, ["instructor"]);
   const form = await readForm(request);
   const intent = form.get("intent") === "save" ? "save" : "propose";
   const submission = parseDesignForm(form, intent);
