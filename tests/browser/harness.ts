@@ -33,7 +33,8 @@ export async function startAppServer(): Promise<{ url: string; stop: () => void 
   child.stdout!.on("data", (c) => (output += c));
   child.stderr!.on("data", (c) => (output += c));
   const url = `http://127.0.0.1:${TEST_APP_PORT}`;
-  for (let i = 0; i < 100; i++) {
+  // Up to 60 s: on a busy machine (a full suite beside other work) the first answer can take 20 s.
+  for (let i = 0; i < 300; i++) {
     try {
       const res = await fetch(`${url}/sign-in`);
       if (res.ok) return { url, stop: () => child.kill("SIGTERM") };
