@@ -41,6 +41,7 @@ export default [
     route("submissions/:submissionId", "routes/submissions/submission.tsx"),
     route("sessions/:sessionId/review", "routes/sessions/review.tsx"),
     route("sessions/:sessionId/review/:submissionId", "routes/sessions/review-submission.tsx"),
+    route("sessions/:sessionId/class-results", "routes/sessions/class-results.tsx"),
     ...prefix("admin", [
       route("people", "routes/admin/people.tsx"),
       route("mail", "routes/admin/mail.tsx"),
@@ -60,6 +61,7 @@ export default [
     route("courses/:courseId/gradebook", "routes/api/course-gradebook.ts"),
     route("sessions/:sessionId", "routes/api/session.ts"),
     route("sessions/:sessionId/gradebook", "routes/api/session-gradebook.ts"),
+    route("sessions/:sessionId/class-results", "routes/api/class-results.ts"),
     route("feed-check", "routes/api/feed-check.ts"),
     route("groups/:groupId/submissions", "routes/api/group-submissions.ts"),
     route("groups/:groupId/submissions/preview", "routes/api/submission-preview.ts"),

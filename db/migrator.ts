@@ -11,6 +11,7 @@ import * as m0011 from "./migrations/0011-account-roles-course-archive";
 import * as m0015 from "./migrations/0015-submissions";
 import * as m0020 from "./migrations/0020-api-tokens";
 import * as m0021 from "./migrations/0021-gradebook";
+import * as m0022 from "./migrations/0022-class-fit-exclusions";
 import * as m0025 from "./migrations/0025-gradebook-versions";
 
 const migrations = [
@@ -23,6 +24,7 @@ const migrations = [
   { name: "0015-submissions", ...m0015 },
   { name: "0020-api-tokens", ...m0020 },
   { name: "0021-gradebook", ...m0021 },
+  { name: "0022-class-fit-exclusions", ...m0022 },
   { name: "0025-gradebook-versions", ...m0025 },
 ];
 

@@ -1,4 +1,6 @@
-// A small SVG plot: measured points, an optional model curve, an optional zero line (residuals).
+// A small SVG plot: measured points, an optional model curve, an optional zero line (residuals),
+// and optionally a second set of points drawn as crosses and a dashed second line (class results:
+// benches left out of a fit, the reference line).
 // Axes carry the quantity and unit; a caption says what the marks are, so colour is not needed.
 // The SVG is drawn at the width it is shown at (measured in the browser), so its text stays at
 // 11 px and more on a phone instead of shrinking with a scaled-down picture.
@@ -14,6 +16,12 @@ export interface XYPlotProps {
   curve?: Array<[number, number]>;
   zeroLine?: boolean;
   height?: number;
+  /** a second set of points, drawn as crosses */
+  crosses?: Array<[number, number]>;
+  /** a second line, dashed */
+  dashed?: Array<[number, number]>;
+  /** what each mark stands for, in the caption (defaults: measured points, the fitted model) */
+  legend?: { points?: string; curve?: string; crosses?: string; dashed?: string };
 }
 
 const DEFAULT_WIDTH = 640;
@@ -47,9 +55,9 @@ function useWidth<T extends HTMLElement>() {
   return [ref, width] as const;
 }
 
-export function XYPlot({ title, xLabel, yLabel, points, curve = [], zeroLine = false, height = 300 }: XYPlotProps) {
+export function XYPlot({ title, xLabel, yLabel, points, curve = [], zeroLine = false, height = 300, crosses = [], dashed = [], legend = {} }: XYPlotProps) {
   const [box, W] = useWidth<HTMLDivElement>();
-  const all = [...points, ...curve];
+  const all = [...points, ...curve, ...crosses, ...dashed].filter((p) => Number.isFinite(p[0]) && Number.isFinite(p[1]));
   const ys = all.map((p) => p[1]);
   if (zeroLine) ys.push(0);
   const yScale = scaleLinear().domain(extent(ys)).nice();
@@ -59,10 +67,14 @@ export function XYPlot({ title, xLabel, yLabel, points, curve = [], zeroLine = f
   const M = { top: 12, right: 16, bottom: 46, left: Math.ceil(tickChars * TICK_PX * 0.6) + 12 + LABEL_PX + 10 };
   const x = scaleLinear().domain(extent(all.map((p) => p[0]))).nice().range([M.left, W - M.right]);
   const y = yScale.range([height - M.bottom, M.top]);
-  const path = curve
-    .filter((p) => Number.isFinite(p[0]) && Number.isFinite(p[1]))
-    .map((p, i) => `${i ? "L" : "M"}${x(p[0]).toFixed(1)},${y(p[1]).toFixed(1)}`)
-    .join("");
+  const pathOf = (line: Array<[number, number]>) =>
+    line
+      .filter((p) => Number.isFinite(p[0]) && Number.isFinite(p[1]))
+      .map((p, i) => `${i ? "L" : "M"}${x(p[0]).toFixed(1)},${y(p[1]).toFixed(1)}`)
+      .join("");
+  const path = pathOf(curve);
+  const dashedPath = pathOf(dashed);
+  const shownCrosses = crosses.filter((p) => Number.isFinite(p[0]) && Number.isFinite(p[1]));
   const xTickCount = Math.max(2, Math.floor((W - M.left - M.right) / 70));
   return (
     <figure className="my-4 max-w-3xl" ref={box}>
@@ -79,15 +91,19 @@ export function XYPlot({ title, xLabel, yLabel, points, curve = [], zeroLine = f
         <line x1={M.left} x2={M.left} y1={M.top} y2={height - M.bottom} stroke="#1d2125" />
         <line x1={M.left} x2={W - M.right} y1={height - M.bottom} y2={height - M.bottom} stroke="#1d2125" />
         {zeroLine ? <line x1={M.left} x2={W - M.right} y1={y(0)} y2={y(0)} stroke="#1d2125" strokeDasharray="4 3" /> : null}
-        {path ? <path d={path} fill="none" stroke="#0b6170" strokeWidth="2" /> : null}
+        {dashedPath ? <path d={dashedPath} fill="none" stroke="#8a4b08" strokeWidth="2" strokeDasharray="7 4" data-series="dashed" /> : null}
+        {path ? <path d={path} fill="none" stroke="#0b6170" strokeWidth="2" data-series="curve" /> : null}
         {points.filter((p) => Number.isFinite(p[1])).map((p, i) => (
-          <circle key={i} cx={x(p[0])} cy={y(p[1])} r="3.5" fill="none" stroke="#1d2125" strokeWidth="1.5" />
+          <circle key={i} cx={x(p[0])} cy={y(p[1])} r="3.5" fill="none" stroke="#1d2125" strokeWidth="1.5" data-series="points" />
+        ))}
+        {shownCrosses.map((p, i) => (
+          <path key={`c${i}`} d={`M${(x(p[0]) - 4.5).toFixed(1)},${(y(p[1]) - 4.5).toFixed(1)}l9,9m0,-9l-9,9`} fill="none" stroke="#a3261b" strokeWidth="2" data-series="crosses" />
         ))}
         <text x={(M.left + W - M.right) / 2} y={height - 8} textAnchor="middle" fontSize={LABEL_PX} fontWeight="bold">{xLabel}</text>
         <text transform={`translate(${LABEL_PX + 2} ${(M.top + height - M.bottom) / 2}) rotate(-90)`} textAnchor="middle" fontSize={LABEL_PX} fontWeight="bold">{yLabel}</text>
       </svg>
       <figcaption className="text-sm text-ink-soft">
-        {title}: open circles are measured points{path ? "; the solid line is the fitted model" : ""}{zeroLine ? "; the dashed line is zero" : ""}.
+        {title}: open circles are {legend.points ?? "measured points"}{shownCrosses.length ? `; crosses are ${legend.crosses ?? "other points"}` : ""}{path ? `; the solid line is ${legend.curve ?? "the fitted model"}` : ""}{dashedPath ? `; the long-dashed line is ${legend.dashed ?? "a second line"}` : ""}{zeroLine ? "; the dashed line is zero" : ""}.
       </figcaption>
     </figure>
   );

@@ -1,0 +1,162 @@
+// Class results of a practical for its staff: the pooled Arrhenius fit over the benches' marking k
+// (each group's latest version, when it is marked), beside the reaction system's reference, and
+// the benches an instructor left out of the fit with a reason (table class_fit_exclusions,
+// audited). The science is pure, in app/lib/gradebook/class-results.ts.
+import { data } from "react-router";
+import { QueryTypes, UniqueConstraintError } from "sequelize";
+import { z } from "zod";
+import { getSequelize } from "../db/sequelize.server";
+import { Course, User } from "../db/models.server";
+import { Bench, LabSession } from "../db/lab-sessions.server";
+import { ReactionSystem } from "../db/reaction-systems.server";
+import { ClassFitExclusion } from "../db/class-results.server";
+import { recordAudit } from "../audit.server";
+import { ownCourseRole } from "../guards.server";
+import { requireSessionStaff } from "../submissions/context.server";
+import { classResults, type ClassBenchInput, type ClassResults } from "~/lib/gradebook/class-results";
+
+export const REASON_MAX = 500;
+
+/** The form that leaves a bench out; the bench id is read with formId. */
+export const excludeSchema = z.object({
+  reason: z
+    .string({ error: "Give a reason: it is shown beside the bench and kept in the audit log." })
+    .trim()
+    .min(1, { error: "Give a reason: it is shown beside the bench and kept in the audit log." })
+    .max(REASON_MAX, { error: `Keep the reason to ${REASON_MAX} characters or fewer.` }),
+});
+
+function problem(message: string, status: 400 | 403 | 404 | 409, api: boolean): never {
+  if (api) throw Response.json({ error: message }, { status });
+  throw data({ message }, { status });
+}
+
+export interface ClassResultsAccess {
+  session: LabSession;
+  /** instructors of the course and admins change exclusions; demonstrators read */
+  canChange: boolean;
+}
+
+/** Staff of the practical's course (instructors, demonstrators, admins), or 403/404. */
+export async function classResultsAccess(user: User, sessionId: number, api = false): Promise<ClassResultsAccess> {
+  const session = await requireSessionStaff(user, sessionId, api);
+  const canChange = user.role === "admin" || (await ownCourseRole(user, session.courseId)) === "instructor";
+  return { session, canChange };
+}
+
+/** Instructors (and admins) only; a demonstrator gets 403. */
+export async function requireClassResultsChange(user: User, sessionId: number, api = false): Promise<LabSession> {
+  const { session, canChange } = await classResultsAccess(user, sessionId, api);
+  if (!canChange) problem("Only an instructor of the course leaves benches out of the class fit or puts them back.", 403, api);
+  return session;
+}
+
+// Each group at a bench with its latest version (the one that counts, as in the review queue),
+// reading only k and its uncertainty out of the JSONB columns.
+const BENCH_ROWS = `
+select b.id as bench_id, b.label as bench, b.temperature_c, g.name as group_name,
+       s.status, (s.checks->>'kMarking')::float8 as k,
+       (s.fit->>'kStdErr')::float8 as k_std_err,
+       (s.fit->'kCI95'->>0)::float8 as k_lo, (s.fit->'kCI95'->>1)::float8 as k_hi
+  from benches b
+  join groups g on g.id = b.group_id
+  left join lateral (
+    select x.status, x.checks, x.fit from submissions x
+     where x.session_id = b.session_id and x.group_id = b.group_id order by x.version desc limit 1
+  ) s on true
+ where b.session_id = $1
+ order by b.position`;
+
+async function benchRows(sessionId: number): Promise<ClassBenchInput[]> {
+  const raw = await getSequelize().query<Record<string, any>>(BENCH_ROWS, { bind: [sessionId], type: QueryTypes.SELECT });
+  return raw.map((r) => ({
+    benchId: r.bench_id,
+    bench: r.bench,
+    group: r.group_name,
+    temperatureC: r.temperature_c,
+    status: r.status ?? null,
+    k: r.k ?? null,
+    kStdErr: r.k_std_err ?? null,
+    kCI95: r.k_lo !== null && r.k_hi !== null && r.k_lo !== undefined ? [r.k_lo, r.k_hi] : null,
+  }));
+}
+
+export interface ClassResultsView extends ClassResults {
+  session: { id: number; courseId: number; courseCode: string; title: string; date: string; status: string };
+  reaction: { name: string; kUnit: "1/s" | "L/(mol·s)"; orderA: number; orderB: number };
+  /** whether the caller may leave benches out or put them back */
+  canChange: boolean;
+}
+
+/** The class results as the page and the API show them (staff only: the caller checks). */
+export async function classResultsView(access: ClassResultsAccess): Promise<ClassResultsView> {
+  const session = await LabSession.findByPk(access.session.id, { include: [{ model: ReactionSystem, as: "reactionSystem" }, { model: Course, as: "course" }] });
+  const system = session!.reactionSystem!;
+  const course = (session as unknown as { course: Course }).course;
+  const rows = await benchRows(session!.id);
+  const exclusions = await ClassFitExclusion.findAll({ where: { sessionId: session!.id }, include: [{ model: User, as: "excludedBy", attributes: ["displayName"] }] });
+  const results = classResults(
+    rows,
+    { kRef: system.kRef, TrefC: system.TrefC, EaKJ: system.EaKJ },
+    exclusions.map((e) => ({ benchId: e.benchId, reason: e.reason, by: e.excludedBy?.displayName ?? null, at: e.createdAt.toISOString() })),
+  );
+  return {
+    ...results,
+    session: { id: session!.id, courseId: session!.courseId, courseCode: course.code, title: session!.title, date: session!.date, status: session!.status },
+    reaction: { name: system.name, kUnit: system.orderA + system.orderB === 1 ? "1/s" : "L/(mol·s)", orderA: system.orderA, orderB: system.orderB },
+    canChange: access.canChange,
+  };
+}
+
+/** What a change gives back: done, or why not (the page shows it beside the form). */
+export type ChangeOutcome = { ok: true; bench: string } | { ok: false; status: 400 | 404 | 409; message: string; field?: "reason" | "benchId" };
+
+async function checkChange(session: LabSession, benchId: number): Promise<{ ok: false; status: 404 | 409; message: string; field?: "benchId" } | { ok: true; bench: Bench }> {
+  const course = await Course.findByPk(session.courseId);
+  if (course?.archivedAt) return { ok: false, status: 409, message: "The course is archived, so its class results are read-only. Take it out of the archive first." };
+  const bench = await Bench.findOne({ where: { id: benchId, sessionId: session.id } });
+  if (!bench) return { ok: false, status: 404, field: "benchId", message: "There is no such bench in this practical." };
+  return { ok: true, bench };
+}
+
+/** Leaves a bench out of the class fit with a reason (1-500 characters); audited in the same transaction. */
+export async function excludeBench(actor: User, session: LabSession, benchId: number, reason: string): Promise<ChangeOutcome> {
+  const why = reason.trim();
+  if (!why) return { ok: false, status: 400, field: "reason", message: "Give a reason for leaving the bench out." };
+  if (why.length > REASON_MAX) return { ok: false, status: 400, field: "reason", message: `Keep the reason to ${REASON_MAX} characters or fewer (it has ${why.length}).` };
+  const checked = await checkChange(session, benchId);
+  if (!checked.ok) return checked;
+  const { bench } = checked;
+  const already: ChangeOutcome = { ok: false, status: 409, field: "benchId", message: `Bench ${bench.label} is already left out of the fit.` };
+  // The unique (session, bench) index refuses a second exclusion even when two arrive at once.
+  return getSequelize().transaction(async (transaction): Promise<ChangeOutcome> => {
+    const existing = await ClassFitExclusion.findOne({ where: { sessionId: session.id, benchId }, transaction });
+    if (existing) return already;
+    const row = await ClassFitExclusion.create({ sessionId: session.id, benchId, reason: why, excludedById: actor.id }, { transaction });
+    await recordAudit(
+      { actorId: actor.id, action: "class-fit.bench-excluded", entityType: "lab_session", entityId: session.id, before: { bench: bench.label, inFit: true }, after: { bench: bench.label, benchId, inFit: false, reason: why, exclusionId: row.id } },
+      transaction,
+    );
+    return { ok: true, bench: bench.label };
+  }).catch((error: unknown) => {
+    if (error instanceof UniqueConstraintError) return already;
+    throw error;
+  });
+}
+
+/** Puts a left-out bench back into the class fit; audited with the reason it had. */
+export async function includeBench(actor: User, session: LabSession, benchId: number): Promise<ChangeOutcome> {
+  const checked = await checkChange(session, benchId);
+  if (!checked.ok) return checked;
+  const { bench } = checked;
+  return getSequelize().transaction(async (transaction): Promise<ChangeOutcome> => {
+    const existing = await ClassFitExclusion.findOne({ where: { sessionId: session.id, benchId }, transaction, lock: transaction.LOCK.UPDATE });
+    if (!existing) return { ok: false, status: 409, field: "benchId", message: `Bench ${bench.label} is not left out of the fit.` };
+    await existing.destroy({ transaction });
+    await recordAudit(
+      { actorId: actor.id, action: "class-fit.bench-included", entityType: "lab_session", entityId: session.id, before: { bench: bench.label, benchId, inFit: false, reason: existing.reason, excludedAt: existing.createdAt.toISOString() }, after: { bench: bench.label, inFit: true } },
+      transaction,
+    );
+    return { ok: true, bench: bench.label };
+  });
+}
