@@ -49,6 +49,9 @@ export default [
     ]),
   ]),
 
+  // The dashboard's live figures (JSON for the dashboard's polling; a resource route, not the API).
+  route("dashboard/live", "routes/dashboard-live.ts"),
+
   // JSON API (resource routes).
   ...prefix("api", [
     route("me", "routes/api/me.ts"),

@@ -1,14 +1,18 @@
 import { Link } from "react-router";
 import type { Route } from "./+types/dashboard";
-import { requireUser } from "~/.server/guards.server";
+import { isCourseStaffSomewhere, requireUser } from "~/.server/guards.server";
 import { coursesFor, type CourseSummary } from "~/.server/courses.server";
+import { liveFigures } from "~/.server/dashboard/live.server";
 import { PageTitle, TableBox } from "~/components/page";
+import { LivePracticals } from "~/components/live-practicals";
 
 export const meta: Route.MetaFunction = () => [{ title: "Dashboard · Ratebook" }];
 
 export async function loader({ request }: Route.LoaderArgs) {
   const user = await requireUser(request);
-  return { role: user.role, name: user.displayName, courses: await coursesFor(user) };
+  // Course staff see their practicals open for uploads, kept fresh by polling; students do not.
+  const live = (await isCourseStaffSomewhere(user)) ? await liveFigures(user) : null;
+  return { role: user.role, name: user.displayName, courses: await coursesFor(user), live };
 }
 
 const INTRO: Record<string, string> = {
@@ -51,13 +55,14 @@ function CourseTable({ courses, label }: { courses: CourseSummary[]; label: stri
 }
 
 export default function Dashboard({ loaderData }: Route.ComponentProps) {
-  const { role, name, courses } = loaderData;
+  const { role, name, courses, live } = loaderData;
   const current = courses.filter((c) => !c.archived);
   const archived = courses.filter((c) => c.archived);
   const mayCreate = role === "course-creator" || role === "admin";
   return (
     <>
       <PageTitle sub={INTRO[role]}>Hello, {name}</PageTitle>
+      {live ? <LivePracticals initial={live} /> : null}
       <section aria-labelledby="courses-h">
         <div className="mb-3 flex flex-wrap items-baseline gap-x-4">
           <h2 id="courses-h" className="text-xl font-bold">Courses</h2>

@@ -93,6 +93,11 @@ export const ACCESS: Record<string, RouteAccess> = {
   "routes/submissions/submission.tsx": { url: "/submissions/{submission}", get: [302, 200, 200, 200, 200, 403], post: NO_ACTION_PAGE, screens: ["student", "instructor"] },
   "routes/sessions/review.tsx": { url: "/sessions/{workSession}/review", get: [302, 200, 200, 200, 403, 403], post: [302, 400, 400, 403, 403, 403], screens: ["instructor", "demonstrator"] },
   "routes/sessions/review-submission.tsx": { url: "/sessions/{workSession}/review/{submission}", get: [302, 200, 200, 200, 403, 403], post: [302, 400, 400, 400, 403, 403], screens: ["instructor", "demonstrator"] },
+  // Class results: staff read; only instructors (and admins) change exclusions (an empty form is 400 for them).
+  "routes/sessions/class-results.tsx": { url: "/sessions/{workSession}/class-results", get: [302, 200, 200, 200, 403, 403], post: [302, 400, 400, 403, 403, 403], screens: ["instructor", "demonstrator"] },
+  "routes/api/class-results.ts": { url: "/api/sessions/{workSession}/class-results", get: [401, 200, 200, 200, 403, 403], post: API_NO_METHOD },
+  // The dashboard's live figures: course staff only (JSON; a student's dashboard does not poll).
+  "routes/dashboard-live.ts": { url: "/dashboard/live", get: [401, 200, 200, 200, 403, 403], post: API_NO_METHOD },
   "routes/api/group-submissions.ts": { url: "/api/groups/{group}/submissions", get: [401, 200, 200, 200, 200, 403], post: [401, 415, 415, 415, 415, 403] },
   "routes/api/submission-preview.ts": { url: "/api/groups/{group}/submissions/preview", get: API_NO_METHOD, post: [401, 415, 415, 415, 415, 403] },
   "routes/api/submission.ts": { url: "/api/submissions/{submission}", get: [401, 200, 200, 200, 200, 403], post: API_NO_METHOD },

@@ -13,9 +13,7 @@ import { ClassFitExclusion } from "../db/class-results.server";
 import { recordAudit } from "../audit.server";
 import { ownCourseRole } from "../guards.server";
 import { requireSessionStaff } from "../submissions/context.server";
-import { classResults, type ClassBenchInput, type ClassResults } from "~/lib/gradebook/class-results";
-
-export const REASON_MAX = 500;
+import { classResults, REASON_MAX, type ClassBenchInput, type ClassResults } from "~/lib/gradebook/class-results";
 
 /** The form that leaves a bench out; the bench id is read with formId. */
 export const excludeSchema = z.object({

@@ -6,6 +6,9 @@
 import { GAS_CONSTANT, rateConstantAt, runArrhenius } from "../kinetics/arrhenius.ts";
 import { deviationPct } from "../marking/marks.ts";
 
+/** The longest reason for leaving a bench out of the fit, in characters. */
+export const REASON_MAX = 500;
+
 /** The fit needs at least this many benches (a line with an interval needs n - 2 >= 1). */
 export const MIN_BENCHES_FOR_FIT = 3;
 

@@ -8,12 +8,13 @@ import { requireUser } from "~/.server/guards.server";
 import { formId, pathId } from "~/.server/ids.server";
 import { readForm } from "~/.server/body.server";
 import { whileDatabaseUp } from "~/.server/db/unavailable.server";
-import { classResultsAccess, classResultsView, excludeBench, excludeSchema, includeBench, REASON_MAX, requireClassResultsChange } from "~/.server/class-results/service.server";
+import { classResultsAccess, classResultsView, excludeBench, excludeSchema, includeBench, requireClassResultsChange } from "~/.server/class-results/service.server";
 import { PageTitle, TableBox } from "~/components/page";
 import { Button, FieldError, FormMessage } from "~/components/form";
 import { XYPlot } from "~/components/xy-plot";
 import { MINUS, sig, withInterval } from "~/lib/format";
 import { fieldError, typed, type FormResult } from "~/lib/form-result";
+import { REASON_MAX } from "~/lib/gradebook/class-results";
 
 export const meta: Route.MetaFunction = ({ data }) => [{ title: `Class results${data ? `: ${data.session.title}` : ""} · Ratebook` }];
 

@@ -60,6 +60,10 @@ export default function Review({ loaderData, actionData }: Route.ComponentProps)
   return (
     <>
       <PageTitle sub={`${session.date} · ${rows.length} ${rows.length === 1 ? "group" : "groups"} at a bench · ${counts.none} without a submission`}>Review: {session.title}</PageTitle>
+      <nav aria-label="This practical" className="mb-4 flex flex-wrap gap-3">
+        <Link className="rounded border border-ink-soft px-3 py-1 hover:bg-accent-soft" to={`/sessions/${session.id}`}>Practical</Link>
+        <Link className="rounded border border-ink-soft px-3 py-1 hover:bg-accent-soft" to={`/sessions/${session.id}/class-results`}>Class results</Link>
+      </nav>
       {actionData && "released" in actionData ? <FormMessage tone="info">Marks released; {actionData.mails} e-mail(s) queued to the groups.</FormMessage> : null}
       <nav aria-label="Review queue" className="mb-4 flex flex-wrap gap-2">
         {TABS.map((t) => (

@@ -102,6 +102,10 @@ export default function PracticalPage({ loaderData, actionData }: Route.Componen
             <Link className="rounded border border-ink-soft px-3 py-1 hover:bg-accent-soft" to={`/sessions/${view.id}/sheets`}>Bench sheets (print)</Link>
             <Link className="rounded border border-ink-soft px-3 py-1 hover:bg-accent-soft" to={`/sessions/${view.id}/prep`}>Prep list (print)</Link>
           </nav>
+          <nav aria-label="Results" className="mb-6 flex flex-wrap gap-3">
+            <Link className="rounded border border-ink-soft px-3 py-1 hover:bg-accent-soft" to={`/sessions/${view.id}/review`}>Review queue</Link>
+            <Link className="rounded border border-ink-soft px-3 py-1 hover:bg-accent-soft" to={`/sessions/${view.id}/class-results`}>Class results</Link>
+          </nav>
           <section aria-labelledby="benches-h">
             <h2 id="benches-h" className="mb-2 text-xl font-bold">Benches ({view.benches.length})</h2>
             <p className="mb-2 text-sm text-ink-soft">
