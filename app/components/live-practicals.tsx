@@ -39,17 +39,23 @@ const time = (iso: string) => `${iso.slice(11, 19)} UTC`;
 const when = (iso: string | null) => (iso ? `${iso.slice(0, 10)} ${iso.slice(11, 16)} UTC` : "—");
 
 export function LivePracticals({ initial }: { initial: LiveFigures }) {
-  const fetcher = useFetcher<LiveFigures>();
+  const fetcher = useFetcher<LiveFigures | { error: string }>();
   useWhileVisible(() => {
     if (fetcher.state === "idle") fetcher.load("/dashboard/live");
   }, LIVE_POLL_MS);
-  const figures = fetcher.data && "practicals" in fetcher.data ? fetcher.data : initial;
+  // A failed refresh (signed out elsewhere, database restarting) keeps the last figures and says why.
+  const last = useRef(initial);
+  const reply = fetcher.data;
+  if (reply && "practicals" in reply) last.current = reply;
+  const figures = last.current;
+  const problem = reply && "error" in reply ? reply.error : null;
   return (
     <section aria-labelledby="live-h" className="mb-8">
       <div className="mb-3 flex flex-wrap items-baseline gap-x-4">
         <h2 id="live-h" className="text-xl font-bold">Practicals open for uploads</h2>
         <p className="text-sm text-ink-soft" data-testid="live-at">Figures as of {time(figures.at)}; refreshed every {LIVE_POLL_MS / 1000} s while this tab is shown.</p>
       </div>
+      {problem ? <p className="mb-3 text-sm font-bold text-bad" data-testid="live-problem">Could not refresh the figures: {problem}</p> : null}
       {figures.practicals.length === 0 ? (
         <p className="rounded border border-dashed border-rule p-6 text-ink-soft">No practical of your courses is open for uploads (planned or groups told) right now.</p>
       ) : (

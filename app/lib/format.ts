@@ -21,7 +21,9 @@ export function sig(x: number | null | undefined, digits = 4, keepZeros = false)
     const [mantissa, exponent] = a.toExponential(digits - 1).split("e");
     text = `${keepZeros ? mantissa : Number(mantissa)}×10${superscript(exponent)}`;
   } else {
-    text = keepZeros ? a.toPrecision(digits) : Number(a.toPrecision(digits)).toString();
+    // toPrecision writes 1010 to 3 figures as "1.01e+3": whole numbers carry no trailing zeros to keep.
+    const rounded = a.toPrecision(digits);
+    text = keepZeros && !rounded.includes("e") ? rounded : Number(rounded).toString();
   }
   return x < 0 ? MINUS + text : text;
 }

@@ -22,6 +22,8 @@ describe("number style", () => {
     const [, lo, hi] = /CI (\S+) to (\S+)\)/.exec(text)!;
     expect(lo).not.toBe(hi);
     expect(distinctDigits([0.002, 0.002])).toBe(4);
+    // three figures of 1012 are 1010 (never 1.01e+3)
+    expect(withInterval(581, [150, 1012], 3)).toBe("581 (95 % CI 150 to 1010)");
   });
 
   test("engine text in the same style", () => {

@@ -57,8 +57,6 @@ export async function action({ request, params }: Route.ActionArgs) {
 
 const signedPct = (x: number | null) => (x === null || !Number.isFinite(x) ? "—" : `${x > 0 ? "+" : x < 0 ? MINUS : ""}${sig(Math.abs(x), 3)} %`);
 
-const STATE_TEXT = { "in-fit": "✓ in the fit", excluded: "✕ left out", "no-upload": "no upload yet", "not-marked": "not marked", "no-k": "no k" } as const;
-
 export default function ClassResultsPage({ loaderData, actionData }: Route.ComponentProps) {
   const { session, reaction, benches, fit, noFit, reference, plot, counts, canChange } = loaderData;
   const busy = useNavigation().state !== "idle";
@@ -150,7 +148,7 @@ export default function ClassResultsPage({ loaderData, actionData }: Route.Compo
                   <td className="num px-3 py-2">{b.lnK !== null ? withInterval(b.k!, b.kCI95, 3) : "—"}</td>
                   <td className="num px-3 py-2">{sig(b.kRefAtT, 4)}</td>
                   <td className="num px-3 py-2">{signedPct(b.deviationPct)}</td>
-                  <td className="px-3 py-2 text-sm">{STATE_TEXT[b.state]}{b.note && b.state !== "in-fit" && b.state !== "excluded" ? ` (${b.note})` : ""}{b.exclusion ? `: ${b.exclusion.reason}` : ""}</td>
+                  <td className="px-3 py-2 text-sm">{b.state === "in-fit" ? "✓ in the fit" : b.exclusion ? <><span className="font-bold text-bad">✕ left out</span>: {b.exclusion.reason}</> : `— ${b.note}`}</td>
                 </tr>
               ))}
             </tbody>
