@@ -3,13 +3,14 @@
 // the benches an instructor left out of the fit with a reason (table class_fit_exclusions,
 // audited). The science is pure, in app/lib/gradebook/class-results.ts.
 import { data } from "react-router";
-import { QueryTypes, UniqueConstraintError } from "sequelize";
+import { UniqueConstraintError } from "sequelize";
 import { z } from "zod";
 import { getSequelize } from "../db/sequelize.server";
 import { Course, User } from "../db/models.server";
 import { Bench, LabSession } from "../db/lab-sessions.server";
 import { ReactionSystem } from "../db/reaction-systems.server";
 import { ClassFitExclusion } from "../db/class-results.server";
+import { sessionGradebook } from "../gradebook/session.server";
 import { recordAudit } from "../audit.server";
 import { ownCourseRole } from "../guards.server";
 import { requireSessionStaff } from "../submissions/context.server";
@@ -49,36 +50,6 @@ export async function requireClassResultsChange(user: User, sessionId: number, a
   return session;
 }
 
-// Each group at a bench with its latest version (the one that counts, as in the review queue),
-// reading only k and its uncertainty out of the JSONB columns.
-const BENCH_ROWS = `
-select b.id as bench_id, b.label as bench, b.temperature_c, g.name as group_name,
-       s.status, (s.checks->>'kMarking')::float8 as k,
-       (s.fit->>'kStdErr')::float8 as k_std_err,
-       (s.fit->'kCI95'->>0)::float8 as k_lo, (s.fit->'kCI95'->>1)::float8 as k_hi
-  from benches b
-  join groups g on g.id = b.group_id
-  left join lateral (
-    select x.status, x.checks, x.fit from submissions x
-     where x.session_id = b.session_id and x.group_id = b.group_id order by x.version desc limit 1
-  ) s on true
- where b.session_id = $1
- order by b.position`;
-
-async function benchRows(sessionId: number): Promise<ClassBenchInput[]> {
-  const raw = await getSequelize().query<Record<string, any>>(BENCH_ROWS, { bind: [sessionId], type: QueryTypes.SELECT });
-  return raw.map((r) => ({
-    benchId: r.bench_id,
-    bench: r.bench,
-    group: r.group_name,
-    temperatureC: r.temperature_c,
-    status: r.status ?? null,
-    k: r.k ?? null,
-    kStdErr: r.k_std_err ?? null,
-    kCI95: r.k_lo !== null && r.k_hi !== null && r.k_lo !== undefined ? [r.k_lo, r.k_hi] : null,
-  }));
-}
-
 export interface ClassResultsView extends ClassResults {
   session: { id: number; courseId: number; courseCode: string; title: string; date: string; status: string };
   reaction: { name: string; kUnit: "1/s" | "L/(mol·s)"; orderA: number; orderB: number };
@@ -88,20 +59,24 @@ export interface ClassResultsView extends ClassResults {
 
 /** The class results as the page and the API show them (staff only: the caller checks). */
 export async function classResultsView(access: ClassResultsAccess): Promise<ClassResultsView> {
-  const session = await LabSession.findByPk(access.session.id, { include: [{ model: ReactionSystem, as: "reactionSystem" }, { model: Course, as: "course" }] });
-  const system = session!.reactionSystem!;
-  const course = (session as unknown as { course: Course }).course;
-  const rows = await benchRows(session!.id);
-  const exclusions = await ClassFitExclusion.findAll({ where: { sessionId: session!.id }, include: [{ model: User, as: "excludedBy", attributes: ["displayName"] }] });
+  // The gradebook's rows: each group at a bench with its latest version (the one that counts).
+  const book = await sessionGradebook(access.session.id);
+  const system = await ReactionSystem.findByPk(access.session.reactionSystemId, { attributes: ["orderA", "orderB"] });
+  const exclusions = await ClassFitExclusion.findAll({ where: { sessionId: access.session.id }, include: [{ model: User, as: "excludedBy", attributes: ["displayName"] }] });
+  const rows: ClassBenchInput[] = book!.rows.map((r) => ({
+    benchId: r.benchId, bench: r.bench, group: r.group, temperatureC: r.temperatureC, submissionId: r.submissionId,
+    status: r.status, k: r.k, kStdErr: r.kStdErr, kCI95: r.kCI95,
+  }));
   const results = classResults(
     rows,
-    { kRef: system.kRef, TrefC: system.TrefC, EaKJ: system.EaKJ },
+    { kRef: book!.reaction.kRef, TrefC: book!.reaction.TrefC, EaKJ: book!.reaction.EaKJ },
     exclusions.map((e) => ({ benchId: e.benchId, reason: e.reason, by: e.excludedBy?.displayName ?? null, at: e.createdAt.toISOString() })),
   );
+  const { session, reaction } = book!;
   return {
     ...results,
-    session: { id: session!.id, courseId: session!.courseId, courseCode: course.code, title: session!.title, date: session!.date, status: session!.status },
-    reaction: { name: system.name, kUnit: system.orderA + system.orderB === 1 ? "1/s" : "L/(mol·s)", orderA: system.orderA, orderB: system.orderB },
+    session: { id: session.id, courseId: session.courseId, courseCode: session.courseCode, title: session.title, date: session.date, status: session.status },
+    reaction: { name: reaction.name, kUnit: system!.orderA + system!.orderB === 1 ? "1/s" : "L/(mol·s)", orderA: system!.orderA, orderB: system!.orderB },
     canChange: access.canChange,
   };
 }

@@ -7,7 +7,7 @@ const REF = { kRef: 0.11, TrefC: 25, EaKJ: 50 };
 const R = 8.314462618; // J/(mol K), CODATA 2018 (exact in the 2019 SI)
 
 function bench(i: number, over: Partial<ClassBenchInput> = {}): ClassBenchInput {
-  return { benchId: i, bench: String(i), group: `G${i}`, temperatureC: 20 + 5 * i, status: "marked", k: 0.1 * (1 + 0.3 * i), kStdErr: 0.002 * (1 + i), kCI95: null, ...over };
+  return { benchId: i, bench: String(i), group: `G${i}`, temperatureC: 20 + 5 * i, submissionId: 100 + i, status: "marked", k: 0.1 * (1 + 0.3 * i), kStdErr: 0.002 * (1 + i), kCI95: null, ...over };
 }
 
 describe("class results: which benches count", () => {

@@ -17,6 +17,8 @@ export interface ClassBenchInput {
   bench: string;
   group: string;
   temperatureC: number;
+  /** the group's latest version, when there is one */
+  submissionId: number | null;
   /** status of the group's latest version; null when the group has not uploaded */
   status: string | null;
   /** marking k of that version, per second (mol/L) */
