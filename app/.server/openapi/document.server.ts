@@ -7,8 +7,9 @@ import { tokensPart } from "./tokens.server";
 import { planningPart } from "./planning.server";
 import { submissionsPart } from "./submissions.server";
 import { gradebookPart } from "./gradebook.server";
+import { classResultsPart } from "./class-results.server";
 
-const parts: ApiPart[] = [corePart, tokensPart, planningPart, submissionsPart, gradebookPart];
+const parts: ApiPart[] = [corePart, tokensPart, planningPart, submissionsPart, gradebookPart, classResultsPart];
 
 export function openApiDocument() {
   const paths: Record<string, Record<string, unknown>> = {};
