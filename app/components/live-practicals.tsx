@@ -1,9 +1,8 @@
-// The dashboard's live table of practicals open for uploads: groups uploaded, versions, being
+// The dashboard's live figures of practicals open for uploads: groups uploaded, versions, being
 // marked, marked, flagged. The first figures come with the page; then a fetcher asks
 // GET /dashboard/live every few seconds while the tab is visible, and stops while it is hidden.
-import { useEffect, useRef } from "react";
+import { useEffect, useRef, type ReactNode } from "react";
 import { Link, useFetcher } from "react-router";
-import { TableBox } from "./page";
 import { LIVE_POLL_MS, type LiveFigures } from "~/lib/dashboard/live-figures";
 
 /** Calls `tick` every `ms` while the document is visible; on becoming visible again, at once. */
@@ -35,6 +34,15 @@ export function useWhileVisible(tick: () => void, ms: number) {
   }, [ms]);
 }
 
+function Figure({ label, name, children }: { label: string; name: string; children: ReactNode }) {
+  return (
+    <div>
+      <dt className="text-sm text-ink-soft">{label}</dt>
+      <dd className="text-xl font-bold tabular-nums" data-figure={name}>{children}</dd>
+    </div>
+  );
+}
+
 const time = (iso: string) => `${iso.slice(11, 19)} UTC`;
 const when = (iso: string | null) => (iso ? `${iso.slice(0, 10)} ${iso.slice(11, 16)} UTC` : "—");
 
@@ -59,38 +67,21 @@ export function LivePracticals({ initial }: { initial: LiveFigures }) {
       {figures.practicals.length === 0 ? (
         <p className="rounded border border-dashed border-rule p-6 text-ink-soft">No practical of your courses is open for uploads (planned or groups told) right now.</p>
       ) : (
-        <TableBox label="Practicals open for uploads">
-          <table className="w-full border-collapse text-left" data-testid="live-table">
-            <thead>
-              <tr className="border-b-2 border-ink">
-                <th className="px-3 py-2">Practical</th>
-                <th className="px-3 py-2">Course</th>
-                <th className="px-3 py-2">Lab day</th>
-                <th className="num px-3 py-2">Groups uploaded</th>
-                <th className="num px-3 py-2">Versions</th>
-                <th className="num px-3 py-2">Being marked</th>
-                <th className="num px-3 py-2">Marked</th>
-                <th className="num px-3 py-2">Flagged</th>
-                <th className="px-3 py-2">Last upload</th>
-              </tr>
-            </thead>
-            <tbody>
-              {figures.practicals.map((p) => (
-                <tr key={p.id} className="border-b border-rule" data-practical={p.id}>
-                  <td className="px-3 py-2"><Link className="font-bold text-accent underline" to={`/sessions/${p.id}/review`}>{p.title}</Link></td>
-                  <td className="px-3 py-2 whitespace-nowrap"><Link className="underline" to={`/courses/${p.courseId}`}>{p.courseCode}</Link></td>
-                  <td className="px-3 py-2 whitespace-nowrap">{p.date}</td>
-                  <td className="num px-3 py-2" data-figure="uploaded">{p.uploaded} of {p.groups}</td>
-                  <td className="num px-3 py-2" data-figure="versions">{p.versions}</td>
-                  <td className="num px-3 py-2" data-figure="being-marked">{p.beingMarked}</td>
-                  <td className="num px-3 py-2" data-figure="marked">{p.marked}</td>
-                  <td className="num px-3 py-2" data-figure="flagged">{p.flagged ? <Link className="font-bold text-warn underline" to={`/sessions/${p.id}/review?tab=flagged`}>{p.flagged}</Link> : 0}</td>
-                  <td className="px-3 py-2 whitespace-nowrap">{when(p.lastUploadAt)}</td>
-                </tr>
-              ))}
-            </tbody>
-          </table>
-        </TableBox>
+        <ul className="grid gap-3 md:grid-cols-2" aria-label="Practicals open for uploads">
+          {figures.practicals.map((p) => (
+            <li key={p.id} className="rounded border border-rule bg-white p-4" data-practical={p.id}>
+              <p className="font-bold"><Link className="text-accent underline" to={`/sessions/${p.id}/review`}>{p.title}</Link></p>
+              <p className="text-sm text-ink-soft"><Link className="underline" to={`/courses/${p.courseId}`}>{p.courseCode}</Link> · lab day {p.date} · {p.status === "notified" ? "groups told" : "planned"} · last upload {when(p.lastUploadAt)}</p>
+              <dl className="mt-3 grid grid-cols-3 gap-x-3 gap-y-2">
+                <Figure label="Groups uploaded" name="uploaded">{p.uploaded} of {p.groups}</Figure>
+                <Figure label="Versions" name="versions">{p.versions}</Figure>
+                <Figure label="Being marked" name="being-marked">{p.beingMarked}</Figure>
+                <Figure label="Marked" name="marked">{p.marked}</Figure>
+                <Figure label="Flagged" name="flagged">{p.flagged ? <Link className="text-warn underline" to={`/sessions/${p.id}/review?tab=flagged`}>{p.flagged}</Link> : 0}</Figure>
+              </dl>
+            </li>
+          ))}
+        </ul>
       )}
     </section>
   );

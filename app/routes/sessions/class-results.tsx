@@ -90,25 +90,22 @@ export default function ClassResultsPage({ loaderData, actionData }: Route.Compo
             <tbody>
               <tr className="border-b border-rule">
                 <th scope="row" className="px-3 py-2">Activation energy Ea</th>
-                <td className="num px-3 py-2" data-testid="fit-ea">{fit ? `${withInterval(fit.EaKJ, fit.EaKJCI95, 3)} kJ/mol` : "—"}</td>
-                <td className="num px-3 py-2">{sig(reference.EaKJ, 4)} kJ/mol</td>
+                <td className="px-3 py-2 tabular-nums" data-testid="fit-ea">{fit ? `${withInterval(fit.EaKJ, fit.EaKJCI95, 3)} kJ/mol` : "—"}</td>
+                <td className="px-3 py-2 tabular-nums">{sig(reference.EaKJ, 4)} kJ/mol</td>
               </tr>
               <tr className="border-b border-rule">
                 <th scope="row" className="px-3 py-2">Pre-exponential factor A</th>
-                <td className="num px-3 py-2">{fit ? `${withInterval(fit.A, fit.ACI95, 3)} ${unit}` : "—"}</td>
-                <td className="num px-3 py-2">{sig(reference.A, 4)} {unit}</td>
+                <td className="px-3 py-2 tabular-nums">{fit ? `${withInterval(fit.A, fit.ACI95, 3)} ${unit}` : "—"}</td>
+                <td className="px-3 py-2 tabular-nums">{sig(reference.A, 4)} {unit}</td>
               </tr>
-              {fit ? (
-                <tr>
-                  <th scope="row" className="px-3 py-2">Quality of the fit</th>
-                  <td className="px-3 py-2" colSpan={2}>
-                    R² = {sig(fit.r2, 4)}; {fit.dof} degrees of freedom; {fit.weighting === "k-uncertainty" ? "each bench weighted by its k uncertainty" : "benches weighted equally (not every bench has a k uncertainty)"}; reduced χ² = {sig(fit.reducedChiSquare, 3)}{fit.reducedChiSquare > 3 ? " (benches scatter more than their own uncertainties say)" : ""}
-                  </td>
-                </tr>
-              ) : null}
             </tbody>
           </table>
         </TableBox>
+        {fit ? (
+          <p className="mt-2">
+            R² = {sig(fit.r2, 4)}; {fit.dof} {fit.dof === 1 ? "degree" : "degrees"} of freedom; {fit.weighting === "k-uncertainty" ? "each bench weighted by its k uncertainty" : "benches weighted equally (not every bench has a k uncertainty)"}; reduced χ² = {sig(fit.reducedChiSquare, 3)}{fit.reducedChiSquare > 3 ? " (the benches scatter more than their own uncertainties say)" : ""}.
+          </p>
+        ) : null}
         <p className="mt-2 text-sm text-ink-soft">Intervals are 95 % (Student t). Reference A = k ref · exp(Ea / (R · T ref)), from the reaction system's k ref = {sig(reference.kRef, 4)} {unit} at {sig(reference.TrefC, 4)} °C and its Ea.</p>
         {plot.inFit.length || plot.excluded.length ? (
           <XYPlot
@@ -127,7 +124,7 @@ export default function ClassResultsPage({ loaderData, actionData }: Route.Compo
       <section aria-labelledby="spread-h" className="mt-8">
         <h2 id="spread-h" className="mb-2 text-xl font-bold">Marking k against the reference, per bench</h2>
         <TableBox label="Marking k and reference k per bench">
-          <table className="w-full border-collapse text-left">
+          <table className="w-full border-collapse text-left [&_th]:whitespace-nowrap [&_td.num]:whitespace-nowrap">
             <thead>
               <tr className="border-b-2 border-ink">
                 <th className="px-3 py-2">Bench</th>
@@ -136,7 +133,7 @@ export default function ClassResultsPage({ loaderData, actionData }: Route.Compo
                 <th className="num px-3 py-2">Marking k ({unit})</th>
                 <th className="num px-3 py-2">k ref at T ({unit})</th>
                 <th className="num px-3 py-2">Deviation</th>
-                <th className="px-3 py-2">Class fit</th>
+                <th className="min-w-56 px-3 py-2">Class fit</th>
               </tr>
             </thead>
             <tbody>
@@ -171,7 +168,7 @@ export default function ClassResultsPage({ loaderData, actionData }: Route.Compo
                   <Form method="post">
                     <input type="hidden" name="intent" value="include" />
                     <input type="hidden" name="benchId" value={b.benchId} />
-                    <button type="submit" disabled={busy} className="rounded border border-ink-soft px-3 py-1 hover:bg-accent-soft" aria-label={`Put bench ${b.bench} back into the fit`}>Put back</button>
+                    <button type="submit" disabled={busy} className="rounded border border-ink-soft px-3 py-1 hover:bg-accent-soft">Put back<span className="sr-only"> bench {b.bench} into the fit</span></button>
                   </Form>
                 ) : null}
               </li>
@@ -179,7 +176,7 @@ export default function ClassResultsPage({ loaderData, actionData }: Route.Compo
           </ul>
         )}
         {canChange && choosable.length ? (
-          <Form method="post" noValidate className="mt-4 border-t border-rule pt-4">
+          <Form key={`exclude-${excluded.length}`} method="post" noValidate className="mt-4 border-t border-rule pt-4">
             <h3 className="mb-2 font-bold">Leave a bench out</h3>
             <input type="hidden" name="intent" value="exclude" />
             <div className="mb-3">
