@@ -71,7 +71,7 @@ export function LivePracticals({ initial }: { initial: LiveFigures }) {
           {figures.practicals.map((p) => (
             <li key={p.id} className="rounded border border-rule bg-white p-4" data-practical={p.id}>
               <p className="font-bold"><Link className="text-accent underline" to={`/sessions/${p.id}/review`}>{p.title}</Link></p>
-              <p className="text-sm text-ink-soft"><Link className="underline" to={`/courses/${p.courseId}`}>{p.courseCode}</Link> · lab day {p.date} · {p.status === "notified" ? "groups told" : "planned"} · last upload {when(p.lastUploadAt)}</p>
+              <p className="text-sm text-ink-soft">{p.courseCode} · lab day {p.date} · {p.status === "notified" ? "groups told" : "planned"} · last upload {when(p.lastUploadAt)}</p>
               <dl className="mt-3 grid grid-cols-3 gap-x-3 gap-y-2">
                 <Figure label="Groups uploaded" name="uploaded">{p.uploaded} of {p.groups}</Figure>
                 <Figure label="Versions" name="versions">{p.versions}</Figure>
