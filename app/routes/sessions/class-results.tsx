@@ -140,7 +140,7 @@ export default function ClassResultsPage({ loaderData, actionData }: Route.Compo
               {benches.map((b) => (
                 <tr key={b.benchId} className="border-b border-rule align-top">
                   <td className="px-3 py-2 font-bold">{b.bench}</td>
-                  <td className="px-3 py-2">{b.submissionId ? <Link className="text-accent underline" to={`/sessions/${session.id}/review/${b.submissionId}`}>{b.group}</Link> : b.group}</td>
+                  <td className="px-3 py-2 whitespace-nowrap">{b.submissionId ? <Link className="text-accent underline" to={`/sessions/${session.id}/review/${b.submissionId}`}>{b.group}</Link> : b.group}</td>
                   <td className="num px-3 py-2">{sig(b.temperatureC, 3)}</td>
                   <td className="num px-3 py-2">{b.lnK !== null ? withInterval(b.k!, b.kCI95, 3) : "—"}</td>
                   <td className="num px-3 py-2">{sig(b.kRefAtT, 4)}</td>
