@@ -26,14 +26,16 @@ export default [
         route("groups", "routes/courses/groups.tsx"),
         route("reactions", "routes/courses/reactions.tsx"),
         route("sessions/new", "routes/courses/session-new.tsx"),
+        route("gradebook", "routes/courses/gradebook.tsx"),
       ]),
     ]),
-    // Practicals: the plan, printable bench sheets and the prep list.
+    // Practicals: the plan, printable bench sheets, the prep list and the gradebook.
     route("sessions/:sessionId", "routes/sessions/session.tsx"),
     ...prefix("sessions/:sessionId", [
       route("sheets", "routes/sessions/sheets.tsx"),
       route("benches/:benchId/sheet", "routes/sessions/bench-sheet.tsx"),
       route("prep", "routes/sessions/prep.tsx"),
+      route("gradebook", "routes/sessions/gradebook.tsx"),
     ]),
     route("fit-check", "routes/tools/fit-check.tsx"),
     // Uploads, feedback and review.
@@ -65,6 +67,7 @@ export default [
     route("sessions/:sessionId", "routes/api/session.ts"),
     route("sessions/:sessionId/gradebook", "routes/api/session-gradebook.ts"),
     route("sessions/:sessionId/class-results", "routes/api/class-results.ts"),
+    route("table-views/:tableKey", "routes/api/table-view.ts"),
     route("feed-check", "routes/api/feed-check.ts"),
     route("groups/:groupId/submissions", "routes/api/group-submissions.ts"),
     route("groups/:groupId/submissions/preview", "routes/api/submission-preview.ts"),

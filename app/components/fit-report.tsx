@@ -5,27 +5,13 @@ import type { MeasuredKind } from "~/lib/fit-form";
 import { distinctDigits, sig, styleNumbers, unitText, withInterval } from "~/lib/format";
 import { XYPlot } from "./xy-plot";
 import { TableBox } from "./page";
+import { FLAG_TITLE } from "~/lib/marking/flag-titles";
 
 const MODEL_TEXT: Record<string, string> = {
   "first-order": "first order in A",
   "second-order-A": "second order in A",
   "second-order-AB-stoichiometric": "first order in A and B, stoichiometric feed",
   "second-order-AB-unequal": "first order in A and B, unequal feed",
-};
-
-const FLAG_TITLE: Record<string, string> = {
-  "few-points": "Few readings",
-  "low-conversion": "Little of the reaction covered",
-  "unit-slip": "Units look off",
-  curvature: "Residuals bend",
-  "beyond-asymptote": "Readings past the long-time limit",
-  "time-order": "Times out of order",
-  "order-mismatch": "Another rate law fits better",
-  "straight-line-bias": "Hand line biased",
-  "fit-not-converged": "Curve fit did not settle",
-  "feed-mismatch": "First reading does not match the feed",
-  outlier: "A reading far from the rest",
-  "fits-disagree": "The two fits disagree",
 };
 
 function measuredLabel(kind: MeasuredKind, concentrationUnit: string) {

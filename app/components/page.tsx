@@ -1,4 +1,4 @@
-import type { ReactNode } from "react";
+import type { ReactNode, Ref } from "react";
 
 /** A narrow centred page for signed-out screens (sign-in, invitation, reset). */
 export function NarrowPage({ title, children }: { title: string; children: ReactNode }) {
@@ -25,9 +25,11 @@ export function PageTitle({ children, sub }: { children: ReactNode; sub?: ReactN
  * Focusable and labelled, so keyboard users can scroll it too; `relative`, so visually hidden
  * (absolutely placed) labels inside stay within the box instead of widening the page.
  */
-export function TableBox({ label, children }: { label: string; children: ReactNode }) {
+export function TableBox({ label, children, tall, boxRef }: { label: string; children: ReactNode; tall?: boolean; boxRef?: Ref<HTMLDivElement> }) {
+  // `tall`: a long table scrolls down inside the box too (at most 70 % of the window), so its
+  // sticky header stays in view; `boxRef` gives a virtualiser the scrolling element.
   return (
-    <div role="region" aria-label={label} tabIndex={0} className="relative max-w-full overflow-x-auto rounded border border-rule bg-white">
+    <div ref={boxRef} role="region" aria-label={label} tabIndex={0} className={`relative max-w-full overflow-x-auto rounded border border-rule bg-white${tall ? " max-h-[70vh] overflow-y-auto" : ""}`}>
       {children}
     </div>
   );

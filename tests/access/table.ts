@@ -86,6 +86,12 @@ export const ACCESS: Record<string, RouteAccess> = {
   // Gradebooks: the course's staff read them; students never (403, a known resource).
   "routes/api/session-gradebook.ts": { url: "/api/sessions/{session}/gradebook", get: [401, 200, 200, 200, 403, 403], post: API_NO_METHOD },
   "routes/api/course-gradebook.ts": { url: "/api/courses/{course}/gradebook", get: [401, 200, 200, 200, 403, 403], post: API_NO_METHOD },
+  // The pages of the same gradebooks; only instructors (and admins) change the course settings
+  // (an empty form is a 400 with each weight's message), demonstrators read only.
+  "routes/sessions/gradebook.tsx": { url: "/sessions/{workSession}/gradebook", get: [302, 200, 200, 200, 403, 403], post: NO_ACTION_PAGE, screens: ["instructor", "demonstrator"] },
+  "routes/courses/gradebook.tsx": { url: "/courses/{course}/gradebook", get: [302, 200, 200, 200, 403, 403], post: [302, 400, 400, 403, 403, 403], screens: ["instructor", "demonstrator"] },
+  // Each person's own remembered table views; an empty body is not JSON (400).
+  "routes/api/table-view.ts": { url: "/api/table-views/course-gradebook", get: [401, 200, 200, 200, 200, 200], post: [401, 400, 400, 400, 400, 400] },
   "routes/api/feed-check.ts": { url: "/api/feed-check", get: API_NO_METHOD, post: [401, 400, 400, 400, 403, 403] },
   // Uploads, feedback and review: staff of the course and the group's own student; another
   // course's student is refused (403: not in the course). A page upload needs multipart (415).

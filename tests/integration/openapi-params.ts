@@ -14,5 +14,5 @@ export async function pathParameterValues(): Promise<Record<string, number | str
   const session = await LabSession.findOne({ where: { courseId: course!.id }, order: [["id", "ASC"]] });
   const reaction = await ReactionSystem.findOne({ where: { courseId: course!.id }, order: [["id", "ASC"]] });
   const { groupId, submissionId } = await submissionFixture();
-  return { courseId: course!.id, tokenId: token.id, sessionId: session!.id, reactionSystemId: reaction!.id, groupId, submissionId };
+  return { tableKey: "session-gradebook", courseId: course!.id, tokenId: token.id, sessionId: session!.id, reactionSystemId: reaction!.id, groupId, submissionId };
 }

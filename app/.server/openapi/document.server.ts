@@ -8,8 +8,9 @@ import { planningPart } from "./planning.server";
 import { submissionsPart } from "./submissions.server";
 import { gradebookPart } from "./gradebook.server";
 import { classResultsPart } from "./class-results.server";
+import { tableViewsPart } from "./table-views.server";
 
-const parts: ApiPart[] = [corePart, tokensPart, planningPart, submissionsPart, gradebookPart, classResultsPart];
+const parts: ApiPart[] = [corePart, tokensPart, planningPart, submissionsPart, gradebookPart, classResultsPart, tableViewsPart];
 
 export function openApiDocument() {
   const paths: Record<string, Record<string, unknown>> = {};

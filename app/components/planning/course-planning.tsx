@@ -29,6 +29,7 @@ export function CoursePlanning({ courseId, role, sessions }: Props) {
         <nav aria-label="Planning" className="flex flex-wrap gap-2">
           {role === "instructor" ? <Link className="rounded bg-accent px-3 py-1 font-bold text-accent-ink" to={`/courses/${courseId}/sessions/new`}>Design a practical</Link> : null}
           {role === "instructor" ? <Link className="rounded border border-ink-soft px-3 py-1 hover:bg-accent-soft" to={`/courses/${courseId}/roster`}>Roster import</Link> : null}
+          <Link className="rounded border border-ink-soft px-3 py-1 hover:bg-accent-soft" to={`/courses/${courseId}/gradebook`}>Gradebook</Link>
           <Link className="rounded border border-ink-soft px-3 py-1 hover:bg-accent-soft" to={`/courses/${courseId}/groups`}>Groups</Link>
           <Link className="rounded border border-ink-soft px-3 py-1 hover:bg-accent-soft" to={`/courses/${courseId}/reactions`}>Reaction systems</Link>
         </nav>

@@ -107,7 +107,7 @@ export default function ReviewSubmission({ loaderData, actionData }: Route.Compo
   const err = actionData && "error" in actionData ? actionData : null;
   return (
     <>
-      <p className="mb-2 text-sm"><Link className="text-accent underline" to={`/sessions/${session.id}/review`}>← Review: {session.title}</Link></p>
+      <p className="mb-2 text-sm"><Link className="text-accent underline" to={`/sessions/${session.id}/review`}>← Review: {session.title}</Link> · <Link className="text-accent underline" to={`/sessions/${session.id}/gradebook`}>Gradebook</Link></p>
       <PageTitle sub={bench ? <>Bench {bench.label}: CA0 {sig(bench.CA0)} mol/L, CB0 {sig(bench.CB0)} mol/L, {sig(bench.temperatureC, 3)} °C</> : null}>
         {group.name}, version {view.version}
       </PageTitle>

@@ -63,6 +63,7 @@ export default function Review({ loaderData, actionData }: Route.ComponentProps)
       <nav aria-label="This practical" className="mb-4 flex flex-wrap gap-3">
         <Link className="rounded border border-ink-soft px-3 py-1 hover:bg-accent-soft" to={`/sessions/${session.id}`}>Practical</Link>
         <Link className="rounded border border-ink-soft px-3 py-1 hover:bg-accent-soft" to={`/sessions/${session.id}/class-results`}>Class results</Link>
+        <Link className="rounded border border-ink-soft px-3 py-1 hover:bg-accent-soft" to={`/sessions/${session.id}/gradebook`}>Gradebook</Link>
       </nav>
       {actionData && "released" in actionData ? <FormMessage tone="info">Marks released; {actionData.mails} e-mail(s) queued to the groups.</FormMessage> : null}
       <nav aria-label="Review queue" className="mb-4 flex flex-wrap gap-2">

@@ -105,6 +105,7 @@ export default function PracticalPage({ loaderData, actionData }: Route.Componen
           <nav aria-label="Results" className="mb-6 flex flex-wrap gap-3">
             <Link className="rounded border border-ink-soft px-3 py-1 hover:bg-accent-soft" to={`/sessions/${view.id}/review`}>Review queue</Link>
             <Link className="rounded border border-ink-soft px-3 py-1 hover:bg-accent-soft" to={`/sessions/${view.id}/class-results`}>Class results</Link>
+            <Link className="rounded border border-ink-soft px-3 py-1 hover:bg-accent-soft" to={`/sessions/${view.id}/gradebook`}>Gradebook</Link>
           </nav>
           <section aria-labelledby="benches-h">
             <h2 id="benches-h" className="mb-2 text-xl font-bold">Benches ({view.benches.length})</h2>
