@@ -166,7 +166,8 @@ describe("a course's gradebook with 600 students", () => {
     const box = page.getByRole("region", { name: "Gradebook of this course" });
     await box.hover();
     // Scroll down the box in wheel steps, as a person would.
-    for (let i = 0; i < 60 && (await last.count()) === 0; i++) {
+    const atEnd = () => box.evaluate((el) => el.scrollTop + el.clientHeight >= el.scrollHeight - 1);
+    for (let i = 0; i < 80 && !(await atEnd()); i++) {
       await page.mouse.wheel(0, 800);
       await page.waitForTimeout(30);
     }

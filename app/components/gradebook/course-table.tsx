@@ -35,7 +35,7 @@ function practicalColumn(s: CourseGradebookSession, zero: boolean): GradeColumn<
 function courseColumns(sessions: CourseGradebookSession[], zero: boolean): Array<GradeColumn<Row>> {
   return [
     {
-      id: "name", label: "Name", width: "w-56", hideable: false,
+      id: "name", label: "Name", width: "w-40 sm:w-56", hideable: false,
       text: (r) => r.name,
       cell: (r) => <span className="block truncate font-bold" title={r.name}>{r.name}</span>,
     },

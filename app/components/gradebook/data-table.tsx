@@ -226,8 +226,8 @@ export function DataTable<Row>({ tableKey, label, rows, columns, rowId, searchTe
                   >
                     <div className={meta.width}>
                       <button type="button" onClick={header.column.getToggleSortingHandler()} className={`flex w-full items-end gap-1 font-bold hover:text-accent ${meta.numeric ? "justify-end text-right" : "text-left"}`}>
-                        <span>
-                          {meta.label}
+                        <span className="min-w-0">
+                          <span className="line-clamp-3" title={meta.label}>{meta.label}</span>
                           {meta.unit ? <> <span className="block text-sm font-normal">{meta.unit}</span></> : null}
                         </span>
                         <span aria-hidden="true" className={dir ? "text-accent" : "text-ink-soft"}>{sortMark(dir)}</span>
