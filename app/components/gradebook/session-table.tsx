@@ -56,7 +56,7 @@ function sessionColumns(sessionId: number, kUnit: string): Array<GradeColumn<Row
       text: (r) => (r.k === null ? noMarkReason(r) : withInterval(r.k, r.kCI95, 3)),
       cell: (r) => (r.k === null ? <Missing reason={noMarkReason(r)} /> : <KWithInterval k={r.k} ci={r.kCI95} />),
     },
-    numberColumn("kRefAtT", "kRef at T", `(${kUnit})`, "w-28", (r) => r.kRefAtT, (x) => sig(x, 3)),
+    numberColumn("kRefAtT", "kRef at T", `(${kUnit})`, "w-28", (r) => r.kRefAtT, (x) => sig(x, 3, true)),
     numberColumn("deviationPct", "Deviation", "(% from kRef)", "w-28", (r) => r.deviationPct, signedPercentText),
     numberColumn("experimentPart", "Experiment", "(% of marks)", "w-28", (r) => r.experimentPart, percentText),
     numberColumn("analysisPart", "Analysis", "(% of marks)", "w-28", (r) => r.analysisPart, percentText),
@@ -75,7 +75,7 @@ function sessionColumns(sessionId: number, kUnit: string): Array<GradeColumn<Row
           <span className="font-bold">✎ set by hand</span>
           {r.overrideReason ? <span className="block truncate text-sm text-ink-soft" title={r.overrideReason}>{r.overrideReason}</span> : null}
         </span>
-      ) : "no",
+      ) : r.status === null ? <Missing reason="no upload" /> : "no",
     },
     {
       id: "mark", label: "Mark", unit: "(%)", width: "w-24", numeric: true,
