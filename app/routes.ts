@@ -54,6 +54,17 @@ export default [
   // The dashboard's live figures (JSON for the dashboard's polling; a resource route, not the API).
   route("dashboard/live", "routes/dashboard-live.ts"),
 
+  // Spreadsheet downloads of the gradebooks (resource routes beside their pages' areas: staff
+  // only, answered like the API: 401/403/404 JSON; a Bearer token works as on the API).
+  ...prefix("courses/:courseId", [
+    route("export.xlsx", "routes/courses/export-xlsx.ts"),
+    route("export.csv", "routes/courses/export-csv.ts"),
+  ]),
+  ...prefix("sessions/:sessionId", [
+    route("export.xlsx", "routes/sessions/export-xlsx.ts"),
+    route("export.csv", "routes/sessions/export-csv.ts"),
+  ]),
+
   // JSON API (resource routes).
   ...prefix("api", [
     route("me", "routes/api/me.ts"),

@@ -92,6 +92,12 @@ export const ACCESS: Record<string, RouteAccess> = {
   "routes/courses/gradebook.tsx": { url: "/courses/{course}/gradebook", get: [302, 200, 200, 200, 403, 403], post: [302, 400, 400, 403, 403, 403], screens: ["instructor", "demonstrator"] },
   // Each person's own remembered table views; an empty body is not JSON (400).
   "routes/api/table-view.ts": { url: "/api/table-views/course-gradebook", get: [401, 200, 200, 200, 200, 200], post: [401, 400, 400, 400, 400, 400] },
+  // Spreadsheet downloads: as the gradebook API (staff read; students 403; signed out 401 JSON,
+  // not a sign-in redirect: scripts fetch them, with a token). Not pages, so no screens.
+  "routes/courses/export-xlsx.ts": { url: "/courses/{course}/export.xlsx", get: [401, 200, 200, 200, 403, 403], post: API_NO_METHOD },
+  "routes/courses/export-csv.ts": { url: "/courses/{course}/export.csv", get: [401, 200, 200, 200, 403, 403], post: API_NO_METHOD },
+  "routes/sessions/export-xlsx.ts": { url: "/sessions/{session}/export.xlsx", get: [401, 200, 200, 200, 403, 403], post: API_NO_METHOD },
+  "routes/sessions/export-csv.ts": { url: "/sessions/{session}/export.csv", get: [401, 200, 200, 200, 403, 403], post: API_NO_METHOD },
   "routes/api/feed-check.ts": { url: "/api/feed-check", get: API_NO_METHOD, post: [401, 400, 400, 400, 403, 403] },
   // Uploads, feedback and review: staff of the course and the group's own student; another
   // course's student is refused (403: not in the course). A page upload needs multipart (415).

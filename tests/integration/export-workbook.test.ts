@@ -5,7 +5,7 @@ import ExcelJS from "exceljs";
 import Papa from "papaparse";
 import { describe, expect, test } from "vitest";
 import { addTableSheet, attachment, downloadName, newWorkbook, sheetName, workbookBytes } from "~/.server/exports/workbook.server";
-import { toCsv, type SheetColumn } from "~/lib/exports/table";
+import { plainNumber, toCsv, type SheetColumn } from "~/lib/exports/table";
 import { libreOfficeSheets } from "../setup/libreoffice";
 
 interface Row {
@@ -88,6 +88,12 @@ describe("export workbook building blocks", () => {
     expect(lines[2]).toBe(`S-7,"'=HYPERLINK(""x"")",,0,FALSE`);
     expect(lines[3]).toBe(`S-8,"Rae ""Ray"" Quill, Jr",0.0151,64.5,TRUE`);
     expect(toCsv(columns, [], "No submissions yet.").slice(1).split("\r\n")[1]).toBe("No submissions yet.");
+    // Numbers in plain decimal form, never an exponent (String(1.5e-7) is "1.5e-7"), and they read back exactly.
+    const tiny = toCsv(columns, [{ ...rows[0], k: 1.5e-7 }]).slice(1).split("\r\n")[1];
+    expect(tiny).toBe("00042,Zoë Łukasik-Ørsted,0.00000015,87.25,TRUE");
+    for (const n of [1.5e-7, -2.5e-9, 6.02214076e23, 1e21, 0.1, 0, 123.456]) expect(Number(plainNumber(n)), String(n)).toBe(n);
+    expect(plainNumber(-2.5e-9)).toBe("-0.0000000025");
+    expect(plainNumber(6.02214076e23)).toBe("602214076000000000000000");
   });
 
   test("sheet and file names are safe", () => {

@@ -3,7 +3,7 @@
 // (so no cell lacks its cached value). Records systems and LibreOffice read these as they are.
 import ExcelJS from "exceljs";
 
-import { headerText, typedValue, type CellKind, type SheetColumn } from "~/lib/exports/table";
+import { headerText, typedValue, type CellKind, type CellValue, type SheetColumn } from "~/lib/exports/table";
 
 export { headerText, typedValue, type CellKind, type CellValue, type SheetColumn } from "~/lib/exports/table";
 
@@ -24,6 +24,23 @@ export function sheetName(raw: string, used: Set<string>): string {
 export interface TableSheetOptions {
   /** the line written under the headers when there are no rows, saying what to do next */
   emptyNote?: string;
+  /** the title is a name sheetName() already gave out for this workbook: use it as it is */
+  reservedName?: boolean;
+  /**
+   * Label and value pairs written beside the table (one column gap to its right, from row 1 down),
+   * for what describes the whole sheet (e.g. the file the readings came from); the table itself
+   * keeps row 1 as its only, frozen header row.
+   */
+  aside?: Array<[label: string, value: CellValue]>;
+}
+
+const ASIDE_WIDTHS = [18, 36];
+
+function columnStyle(c: SheetColumn<never>): Partial<ExcelJS.Style> {
+  if (c.numFmt) return { numFmt: c.numFmt };
+  if (c.kind === "datetime") return { numFmt: "yyyy-mm-dd hh:mm" };
+  if (c.kind === "integer") return { numFmt: "0" };
+  return {};
 }
 
 /** Adds one table: headers in row 1 (bold, frozen), one row per item below. */
@@ -35,15 +52,29 @@ export function addTableSheet<Row>(
   rows: readonly Row[],
   options: TableSheetOptions = {},
 ): ExcelJS.Worksheet {
-  const ws = wb.addWorksheet(sheetName(title, used), { views: [{ state: "frozen", ySplit: 1, xSplit: 0 }] });
-  ws.columns = columns.map((c) => ({
-    header: headerText(c),
-    width: Math.max(c.width ?? DEFAULT_WIDTH[c.kind], Math.min(40, headerText(c).length + 2)),
-    style: c.numFmt ? { numFmt: c.numFmt } : c.kind === "datetime" ? { numFmt: "yyyy-mm-dd hh:mm" } : c.kind === "integer" ? { numFmt: "0" } : {},
-  }));
+  const name = options.reservedName ? title : sheetName(title, used);
+  const ws = wb.addWorksheet(name, { views: [{ state: "frozen", ySplit: 1, xSplit: 0 }] });
+  const aside = options.aside ?? [];
+  ws.columns = [
+    ...columns.map((c) => ({
+      header: headerText(c),
+      width: Math.max(c.width ?? DEFAULT_WIDTH[c.kind], Math.min(40, headerText(c).length + 2)),
+      style: columnStyle(c as SheetColumn<never>),
+    })),
+    ...(aside.length ? [{ width: 3 }, ...ASIDE_WIDTHS.map((width) => ({ width }))] : []),
+  ];
   ws.getRow(1).font = { bold: true };
   for (const row of rows) ws.addRow(columns.map((c) => typedValue(c.kind, c.value(row))));
   if (!rows.length && options.emptyNote) ws.addRow([options.emptyNote]);
+  aside.forEach(([label, value], i) => {
+    const labelCell = ws.getCell(i + 1, columns.length + 2);
+    labelCell.value = label;
+    labelCell.font = { bold: true };
+    const valueCell = ws.getCell(i + 1, columns.length + 3);
+    valueCell.value = value;
+    valueCell.font = { bold: false };
+    if (value instanceof Date) valueCell.numFmt = "yyyy-mm-dd hh:mm";
+  });
   return ws;
 }
 
@@ -59,6 +90,9 @@ export async function workbookBytes(wb: ExcelJS.Workbook): Promise<Uint8Array> {
   return new Uint8Array(await wb.xlsx.writeBuffer());
 }
 
+export const XLSX_TYPE = "application/vnd.openxmlformats-officedocument.spreadsheetml.sheet";
+export const CSV_TYPE = "text/csv; charset=utf-8";
+
 /** `Course code – 2026-12-02.xlsx` made safe for a Content-Disposition header and a file system. */
 export function downloadName(parts: string[], date: Date, ext: "xlsx" | "csv"): string {
   const stem = [...parts, date.toISOString().slice(0, 10)]
@@ -72,4 +106,18 @@ export function downloadName(parts: string[], date: Date, ext: "xlsx" | "csv"): 
 export function attachment(fileName: string): string {
   const ascii = fileName.normalize("NFKD").replace(/[^\x20-\x7e]/g, "").replace(/["\\]/g, "");
   return `attachment; filename="${ascii}"; filename*=UTF-8''${encodeURIComponent(fileName)}`;
+}
+
+/** A file download: its bytes with their type and name, never cached (marks change; they are personal data). */
+export function downloadResponse(body: Uint8Array | string, fileName: string, contentType: string): Response {
+  const bytes = typeof body === "string" ? new TextEncoder().encode(body) : body;
+  return new Response(bytes as BodyInit, {
+    headers: {
+      "Content-Type": contentType,
+      "Content-Length": String(bytes.byteLength),
+      "Content-Disposition": attachment(fileName),
+      "Cache-Control": "private, no-store",
+      "X-Content-Type-Options": "nosniff",
+    },
+  });
 }

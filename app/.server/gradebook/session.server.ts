@@ -50,7 +50,8 @@ export interface SessionGradebook {
     id: number; courseId: number; courseCode: string; title: string; date: string; status: string;
     deadline: string | null; marksReleasedAt: string | null; gradeWeight: number;
   };
-  reaction: { name: string; kRef: number; TrefC: number; EaKJ: number; measured: string };
+  /** orders in A and B: k is per second (1/s) when they add up to 1, else L/(mol·s) */
+  reaction: { name: string; kRef: number; TrefC: number; EaKJ: number; measured: string; orderA: number; orderB: number };
   rows: SessionGradebookRow[];
 }
 
@@ -131,7 +132,7 @@ export async function buildSessionGradebook(sessionId: number): Promise<SessionG
       status: session.status, deadline: session.deadline?.toISOString() ?? null,
       marksReleasedAt: session.marksReleasedAt?.toISOString() ?? null, gradeWeight: session.gradeWeight,
     },
-    reaction: { name: system.name, kRef: system.kRef, TrefC: system.TrefC, EaKJ: system.EaKJ, measured: system.measured },
+    reaction: { name: system.name, kRef: system.kRef, TrefC: system.TrefC, EaKJ: system.EaKJ, measured: system.measured, orderA: system.orderA, orderB: system.orderB },
     rows,
   };
 }

@@ -57,7 +57,10 @@ export const gradebookPart: ApiPart = {
         reaction: {
           type: "object",
           required: ["name", "kRef", "TrefC", "EaKJ"],
-          properties: { name: { type: "string" }, kRef: { ...num, description: "per second at TrefC" }, TrefC: num, EaKJ: num, measured: { type: "string" } },
+          properties: {
+            name: { type: "string" }, kRef: { ...num, description: "per second at TrefC" }, TrefC: num, EaKJ: num, measured: { type: "string" },
+            orderA: { type: "integer", description: "order in A" }, orderB: { type: "integer", description: "order in B (k in 1/s when the orders add up to 1, else L/(mol·s))" },
+          },
         },
         rows: { type: "array", items: ref("SessionGradebookRow") },
       },

@@ -40,11 +40,27 @@ export function isoMinute(d: Date) {
   return d.toISOString().slice(0, 16).replace("T", " ");
 }
 
+/**
+ * A number in plain decimal form with a dot, never an exponent: 1.5e-7 -> "0.00000015",
+ * 2e21 -> "2000000000000000000000". The digits are JavaScript's shortest round-trip digits, moved.
+ */
+export function plainNumber(n: number): string {
+  const text = String(n);
+  const m = /^(-?)(\d)(?:\.(\d+))?e([+-]\d+)$/.exec(text);
+  if (!m) return text;
+  const [, sign, lead, rest = "", exp] = m;
+  const digits = lead + rest;
+  const point = 1 + Number(exp); // where the decimal point goes within `digits`
+  if (point <= 0) return `${sign}0.${"0".repeat(-point)}${digits}`;
+  if (point >= digits.length) return sign + digits + "0".repeat(point - digits.length);
+  return `${sign}${digits.slice(0, point)}.${digits.slice(point)}`;
+}
+
 function csvField(kind: CellKind, raw: CellValue | undefined): string {
   const v = typedValue(kind, raw);
   if (v === null) return "";
   let text: string;
-  if (typeof v === "number") text = String(v);
+  if (typeof v === "number") text = plainNumber(v);
   else if (typeof v === "boolean") text = v ? "TRUE" : "FALSE";
   else if (v instanceof Date) text = isoMinute(v);
   // A text cell a spreadsheet would run as a formula gets a leading apostrophe (OWASP advice on CSV injection).
@@ -54,7 +70,8 @@ function csvField(kind: CellKind, raw: CellValue | undefined): string {
 
 /**
  * CSV as spreadsheets read it: UTF-8 with a byte-order mark (so accents survive), comma
- * separated, CRLF line ends (RFC 4180), a dot for decimals, headers with their units.
+ * separated, CRLF line ends (RFC 4180), plain numbers with a dot for decimals (no exponent), headers
+ * with their units.
  */
 export function toCsv<Row>(columns: SheetColumn<Row>[], rows: readonly Row[], emptyNote?: string): string {
   const lines = [columns.map((c) => csvField("text", headerText(c))).join(",")];
