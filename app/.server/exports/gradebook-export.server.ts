@@ -16,7 +16,7 @@ import { getSequelize } from "../db/sequelize.server";
 import { whileDatabaseUp } from "../db/unavailable.server";
 import { requireUser } from "../guards.server";
 import { parseId } from "../ids.server";
-import { requireCourseGradebook, requireSessionGradebook } from "../gradebook/access.server";
+import { requireCourseGradebookAt, requireSessionGradebook } from "../gradebook/access.server";
 import type { Exclusion, StoredReadings } from "../db/submissions.server";
 import { courseGradebook, type CourseGradebook, type CourseGradebookRow } from "../gradebook/course.server";
 import { sessionGradebook, type SessionGradebook, type SessionGradebookRow } from "../gradebook/session.server";
@@ -86,9 +86,12 @@ function part(n: number, book: SessionGradebook, due: boolean, readings: Map<num
   };
 }
 
-/** Everything a course export shows, or null when there is no such course. */
-export async function courseExportData(courseId: number, now = new Date()): Promise<ExportData | null> {
-  const course = await courseGradebook(courseId, now);
+/**
+ * Everything a course export shows, or null when there is no such course. The gradebooks are the
+ * ones kept for the course's version (pass it when the access check has just read it).
+ */
+export async function courseExportData(courseId: number, version?: string, now = new Date()): Promise<ExportData | null> {
+  const course = await courseGradebook(courseId, version);
   if (!course) return null;
   const ids = course.sessions.map((s) => s.id);
   const [books, readings] = await Promise.all([Promise.all(ids.map((id) => sessionGradebook(id))), readingsOf(ids)]);
@@ -100,7 +103,7 @@ export async function courseExportData(courseId: number, now = new Date()): Prom
 export async function sessionExportData(sessionId: number, now = new Date()): Promise<ExportData | null> {
   const book = await sessionGradebook(sessionId);
   if (!book) return null;
-  const [course, readings] = await Promise.all([courseGradebook(book.session.courseId, now), readingsOf([sessionId])]);
+  const [course, readings] = await Promise.all([courseGradebook(book.session.courseId), readingsOf([sessionId])]);
   // A draft is never due (the course gradebook leaves drafts out).
   const due = course!.sessions.find((s) => s.id === sessionId)?.due ?? false;
   return { kind: "session", course: course!.course, students: course!.rows, practicals: [part(1, book, due, readings)], exportedAt: now };
@@ -351,8 +354,8 @@ export function exportDownload(request: Request, kind: "session" | "course", raw
     const user = await requireUser(request, { api: true });
     let data: ExportData | null;
     if (kind === "course") {
-      const id = await requireCourseGradebook(user, parseId(rawId), true);
-      data = await courseExportData(id);
+      const { courseId, version } = await requireCourseGradebookAt(user, parseId(rawId), true);
+      data = await courseExportData(courseId, version);
     } else {
       const id = parseId(rawId);
       if (id === null) return Response.json({ error: "There is no practical with this id." }, { status: 404 });
