@@ -106,6 +106,14 @@ export default function CoursePage({ loaderData, actionData }: Route.ComponentPr
       {pageNotice ? <FormMessage tone="info">{pageNotice}</FormMessage> : null}
       {pageProblem ? <FormMessage tone="error">{pageProblem}</FormMessage> : null}
       <CoursePlanning courseId={course.id} role={canManage ? "instructor" : staffView ? "demonstrator" : "student"} sessions={loaderData.sessions} />
+      {staffView ? (
+        <nav aria-label="Marks downloads" className="-mt-4 mb-8 flex flex-wrap items-center gap-2">
+          <span className="text-ink-soft">Every practical's marks, fits and readings:</span>
+          {/* plain links: downloads are resource routes, not pages for the router to load */}
+          <a className="rounded border border-ink-soft px-3 py-1 hover:bg-accent-soft" href={`/courses/${course.id}/export.xlsx`} download>Download workbook (.xlsx)</a>
+          <a className="rounded border border-ink-soft px-3 py-1 hover:bg-accent-soft" href={`/courses/${course.id}/export.csv`} download>Marks (.csv)</a>
+        </nav>
+      ) : null}
       <div className="grid gap-8 lg:grid-cols-[2fr_1fr]">
         <section aria-labelledby="members-h" className="min-w-0">
           <h2 id="members-h" className="mb-3 text-xl font-bold">{staffView ? "People" : "Staff"} ({members.length})</h2>

@@ -106,6 +106,9 @@ export default function PracticalPage({ loaderData, actionData }: Route.Componen
             <Link className="rounded border border-ink-soft px-3 py-1 hover:bg-accent-soft" to={`/sessions/${view.id}/review`}>Review queue</Link>
             <Link className="rounded border border-ink-soft px-3 py-1 hover:bg-accent-soft" to={`/sessions/${view.id}/class-results`}>Class results</Link>
             <Link className="rounded border border-ink-soft px-3 py-1 hover:bg-accent-soft" to={`/sessions/${view.id}/gradebook`}>Gradebook</Link>
+            {/* plain links: downloads are resource routes, not pages for the router to load */}
+            <a className="rounded border border-ink-soft px-3 py-1 hover:bg-accent-soft" href={`/sessions/${view.id}/export.xlsx`} download>Download workbook (.xlsx)</a>
+            <a className="rounded border border-ink-soft px-3 py-1 hover:bg-accent-soft" href={`/sessions/${view.id}/export.csv`} download>Marks (.csv)</a>
           </nav>
           <section aria-labelledby="benches-h">
             <h2 id="benches-h" className="mb-2 text-xl font-bold">Benches ({view.benches.length})</h2>
