@@ -1,8 +1,8 @@
 // The gradebook downloads in Debian's chromium, on a small invented practical made here: the
-// instructor finds the links on the practical's page and the course page, clicks them, and the
-// browser saves a workbook exceljs can open (with the marks, the fit and the readings sheets) and
-// a CSV with its byte-order mark, each named after the course and the date. Screenshots of both
-// pages at 1280 and 390 px in test-results/.
+// instructor finds the links on the practical's page, the course page and both gradebook pages,
+// clicks them, and the browser saves a workbook exceljs can open (with the marks, the fit and the
+// readings sheets) and a CSV with its byte-order mark, each named after the course and the date.
+// Screenshots of those pages at 1280 and 390 px in test-results/exports-*.png.
 import fs from "node:fs";
 import path from "node:path";
 import ExcelJS from "exceljs";
@@ -60,7 +60,7 @@ describe("downloads in the browser", () => {
   test("the practical's page links both; the browser saves the workbook and the CSV", async () => {
     const page = await open(`/sessions/${p.session.id}`, 1280);
     const nav = page.getByRole("navigation", { name: "Results" });
-    await expect.poll(() => nav.getByRole("link").count()).toBe(4);
+    await expect.poll(() => nav.getByRole("link", { name: "Download workbook (.xlsx)" }).count()).toBe(1);
     await page.screenshot({ path: path.join(shots, "exports-session-1280.png"), fullPage: true });
 
     const xlsx = await download(page, "Download workbook (.xlsx)");
@@ -95,8 +95,27 @@ describe("downloads in the browser", () => {
     await page.context().close();
   }, 60_000);
 
-  test("both pages fit 390 px with the links and pass axe-core", async () => {
-    for (const [url, shot, navName] of [[`/sessions/${p.session.id}`, "exports-session-390.png", "Results"], [`/courses/${p.course.id}`, "exports-course-390.png", "Marks downloads"]] as const) {
+  test("the gradebook pages link the same downloads", async () => {
+    for (const [url, navName, file, shot] of [
+      [`/sessions/${p.session.id}/gradebook`, "This practical", `EXP-B - Practical EXP-B - ${today}.xlsx`, "exports-session-gradebook-1280.png"],
+      [`/courses/${p.course.id}/gradebook`, "Downloads", `EXP-B - ${today}.xlsx`, "exports-course-gradebook-1280.png"],
+    ] as const) {
+      const page = await open(url, 1280);
+      const nav = page.getByRole("navigation", { name: navName });
+      await expect.poll(() => nav.getByRole("link", { name: "Marks (.csv)" }).count()).toBe(1);
+      await page.screenshot({ path: path.join(shots, shot), fullPage: true });
+      expect((await download(page, "Download workbook (.xlsx)")).name).toBe(file);
+      await page.context().close();
+    }
+  }, 60_000);
+
+  test("the pages fit 390 px with the links and pass axe-core", async () => {
+    for (const [url, shot, navName] of [
+      [`/sessions/${p.session.id}`, "exports-session-390.png", "Results"],
+      [`/courses/${p.course.id}`, "exports-course-390.png", "Marks downloads"],
+      [`/sessions/${p.session.id}/gradebook`, "exports-session-gradebook-390.png", "This practical"],
+      [`/courses/${p.course.id}/gradebook`, "exports-course-gradebook-390.png", "Downloads"],
+    ] as const) {
       const page = await open(url, 390);
       await expect.poll(() => page.getByRole("navigation", { name: navName }).getByRole("link", { name: "Marks (.csv)" }).count()).toBe(1);
       await page.screenshot({ path: path.join(shots, shot), fullPage: true });

@@ -38,6 +38,11 @@ export default function CourseGradebook({ loaderData, actionData }: Route.Compon
       <PageTitle sub={<><Link className="underline" to={`/courses/${course.id}`}>{course.code}</Link> · {course.title}{course.term ? ` · ${course.term}` : ""}</>}>
         Gradebook: {course.code}
       </PageTitle>
+      <nav aria-label="Downloads" className="mb-4 flex flex-wrap gap-2">
+        {/* plain links: downloads are resource routes, not pages for the router to load */}
+        <a className="rounded border border-ink-soft px-3 py-1 hover:bg-accent-soft" href={`/courses/${course.id}/export.xlsx`} download>Download workbook (.xlsx)</a>
+        <a className="rounded border border-ink-soft px-3 py-1 hover:bg-accent-soft" href={`/courses/${course.id}/export.csv`} download>Marks (.csv)</a>
+      </nav>
       <p className="mb-1">
         {rows.length} {rows.length === 1 ? "student" : "students"} · {sessions.length} {sessions.length === 1 ? "practical" : "practicals"} · {missingStudents} with missing work
       </p>
