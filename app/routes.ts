@@ -37,13 +37,16 @@ export default [
       route("prep", "routes/sessions/prep.tsx"),
       route("gradebook", "routes/sessions/gradebook.tsx"),
     ]),
-    route("fit-check", "routes/tools/fit-check.tsx"),
-    // Uploads, feedback and review.
+    // Uploads and feedback (a group's own pages).
     route("groups/:groupId/submissions", "routes/groups/submissions.tsx"),
     route("submissions/:submissionId", "routes/submissions/submission.tsx"),
-    route("sessions/:sessionId/review", "routes/sessions/review.tsx"),
-    route("sessions/:sessionId/review/:submissionId", "routes/sessions/review-submission.tsx"),
-    route("sessions/:sessionId/class-results", "routes/sessions/class-results.tsx"),
+    // Review and results of a practical (staff).
+    ...prefix("sessions/:sessionId", [
+      route("review", "routes/sessions/review.tsx"),
+      route("review/:submissionId", "routes/sessions/review-submission.tsx"),
+      route("class-results", "routes/sessions/class-results.tsx"),
+    ]),
+    route("fit-check", "routes/tools/fit-check.tsx"),
     ...prefix("admin", [
       route("people", "routes/admin/people.tsx"),
       route("mail", "routes/admin/mail.tsx"),
