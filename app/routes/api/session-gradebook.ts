@@ -6,6 +6,7 @@ import { whileDatabaseUp } from "~/.server/db/unavailable.server";
 import { requireSessionGradebook } from "~/.server/gradebook/access.server";
 import { sessionRowFilter } from "~/.server/gradebook/filters.server";
 import { sessionGradebook } from "~/.server/gradebook/session.server";
+import { cachedJson } from "~/.server/gradebook/cache.server";
 
 export async function loader({ request, params }: Route.LoaderArgs) {
   return whileDatabaseUp(true, async () => {
@@ -13,8 +14,11 @@ export async function loader({ request, params }: Route.LoaderArgs) {
     const id = parseId(params.sessionId);
     if (id === null) return Response.json({ error: "There is no practical with this id." }, { status: 404 });
     await requireSessionGradebook(user, id, true);
-    const keep = sessionRowFilter(new URL(request.url));
+    const url = new URL(request.url);
+    const keep = sessionRowFilter(url);
     const book = (await sessionGradebook(id))!;
+    // No filter asked for: the kept JSON text, made once per version of the course.
+    if (!url.search) return new Response(cachedJson(`session:${id}`, book), { headers: { "Content-Type": "application/json" } });
     return Response.json({ ...book, rows: book.rows.filter(keep) });
   });
 }
