@@ -38,6 +38,24 @@ export async function requireCourseGradebookAt(user: User, courseId: number | nu
   return ok;
 }
 
+/** A practical's gradebook check in one query, with its course's gradebook version (the API path). */
+export async function requireSessionGradebookAt(user: User, sessionId: number, api: boolean): Promise<{ sessionId: number; courseId: number; version: string }> {
+  const [row] = await getSequelize().query<{ course_id: number; role: string | null; version: string }>(
+    `select ls.course_id, cm.role, coalesce(gv.version, 0)::text as version
+       from lab_sessions ls
+       left join course_memberships cm on cm.course_id = ls.course_id and cm.user_id = $2
+       left join gradebook_versions gv on gv.course_id = ls.course_id
+      where ls.id = $1`,
+    { bind: [sessionId, user.id], type: QueryTypes.SELECT },
+  );
+  if (!row) deny(404, "There is no such practical.", api);
+  const ok = { sessionId, courseId: row.course_id, version: row.version };
+  if (user.role === "admin") return ok;
+  if (!row.role) deny(403, "You are not a member of this course.", api);
+  if (row.role !== "instructor" && row.role !== "demonstrator") deny(403, "Gradebooks are for the course's instructors and demonstrators.", api);
+  return ok;
+}
+
 export function requireSessionGradebook(user: User, sessionId: number, api: boolean) {
   return requireSessionStaff(user, sessionId, api);
 }

@@ -82,10 +82,10 @@ export function markOf(status: string | null, autoMark: number | null, overrideM
 }
 
 /** The practical's gradebook (kept while nothing in its course changes), or null when there is no such practical. Staff only: the caller checks. */
-export async function sessionGradebook(sessionId: number): Promise<SessionGradebook | null> {
-  const at = await sessionCourseVersion(sessionId);
-  if (!at) return null;
-  return cached(`session:${sessionId}`, at.version, async () => ({ value: await buildSessionGradebook(sessionId), validUntil: Infinity }));
+export async function sessionGradebook(sessionId: number, knownVersion?: string): Promise<SessionGradebook | null> {
+  const version = knownVersion ?? (await sessionCourseVersion(sessionId))?.version;
+  if (version === undefined) return null;
+  return cached(`session:${sessionId}`, version, async () => ({ value: await buildSessionGradebook(sessionId), validUntil: Infinity }));
 }
 
 export async function buildSessionGradebook(sessionId: number): Promise<SessionGradebook | null> {
