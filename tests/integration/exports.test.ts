@@ -20,7 +20,7 @@ import { saveGradeSettings } from "~/.server/gradebook/settings.server";
 import { createApiToken, revokeApiToken } from "~/.server/api-tokens.server";
 import { hashPassword } from "~/.server/passwords.server";
 import { runCsv, simulateRun, type SimulatedRun } from "~/lib/marking/simulate";
-import { call, request } from "./helpers";
+import { call } from "./helpers";
 import { makePractical, PASSWORD, uploadRequest, type Practical } from "./practical-fixture";
 import { libreOfficeSheets } from "../setup/libreoffice";
 

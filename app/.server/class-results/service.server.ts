@@ -6,14 +6,12 @@ import { data } from "react-router";
 import { UniqueConstraintError } from "sequelize";
 import { z } from "zod";
 import { getSequelize } from "../db/sequelize.server";
-import { Course, User } from "../db/models.server";
-import { Bench, LabSession } from "../db/lab-sessions.server";
-import { ReactionSystem } from "../db/reaction-systems.server";
+import { User } from "../db/models.server";
+import { Bench } from "../db/lab-sessions.server";
 import { ClassFitExclusion } from "../db/class-results.server";
 import { sessionGradebook } from "../gradebook/session.server";
 import { recordAudit } from "../audit.server";
-import { ownCourseRole } from "../guards.server";
-import { requireSessionStaff } from "../submissions/context.server";
+import { requireSessionGradebook, type GradebookAt } from "../gradebook/access.server";
 import { classResults, REASON_MAX, type ClassBenchInput, type ClassResults } from "~/lib/gradebook/class-results";
 
 /** The form that leaves a bench out; the bench id is read with formId. */
@@ -30,24 +28,20 @@ function problem(message: string, status: 400 | 403 | 404 | 409, api: boolean): 
   throw data({ message }, { status });
 }
 
-export interface ClassResultsAccess {
-  session: LabSession;
-  /** instructors of the course and admins change exclusions; demonstrators read */
-  canChange: boolean;
+export interface ClassResultsAccess extends GradebookAt {
+  sessionId: number;
 }
 
-/** Staff of the practical's course (instructors, demonstrators, admins), or 403/404. */
+/** Staff of the practical's course (instructors, demonstrators, admins), or 403/404: the gradebook's check. */
 export async function classResultsAccess(user: User, sessionId: number, api = false): Promise<ClassResultsAccess> {
-  const session = await requireSessionStaff(user, sessionId, api);
-  const canChange = user.role === "admin" || (await ownCourseRole(user, session.courseId)) === "instructor";
-  return { session, canChange };
+  return { sessionId, ...(await requireSessionGradebook(user, sessionId, api)) };
 }
 
 /** Instructors (and admins) only; a demonstrator gets 403. */
-export async function requireClassResultsChange(user: User, sessionId: number, api = false): Promise<LabSession> {
-  const { session, canChange } = await classResultsAccess(user, sessionId, api);
-  if (!canChange) problem("Only an instructor of the course leaves benches out of the class fit or puts them back.", 403, api);
-  return session;
+export async function requireClassResultsChange(user: User, sessionId: number, api = false): Promise<ClassResultsAccess> {
+  const access = await classResultsAccess(user, sessionId, api);
+  if (!access.instructor) problem("Only an instructor of the course leaves benches out of the class fit or puts them back.", 403, api);
+  return access;
 }
 
 export interface ClassResultsView extends ClassResults {
@@ -60,9 +54,8 @@ export interface ClassResultsView extends ClassResults {
 /** The class results as the page and the API show them (staff only: the caller checks). */
 export async function classResultsView(access: ClassResultsAccess): Promise<ClassResultsView> {
   // The gradebook's rows: each group at a bench with its latest version (the one that counts).
-  const book = await sessionGradebook(access.session.id);
-  const system = await ReactionSystem.findByPk(access.session.reactionSystemId, { attributes: ["orderA", "orderB"] });
-  const exclusions = await ClassFitExclusion.findAll({ where: { sessionId: access.session.id }, include: [{ model: User, as: "excludedBy", attributes: ["displayName"] }] });
+  const book = await sessionGradebook(access.sessionId, access.version);
+  const exclusions = await ClassFitExclusion.findAll({ where: { sessionId: access.sessionId }, include: [{ model: User, as: "excludedBy", attributes: ["displayName"] }] });
   const rows: ClassBenchInput[] = book!.rows.map((r) => ({
     benchId: r.benchId, bench: r.bench, group: r.group, temperatureC: r.temperatureC, submissionId: r.submissionId,
     status: r.status, k: r.k, kStdErr: r.kStdErr, kCI95: r.kCI95,
@@ -76,38 +69,37 @@ export async function classResultsView(access: ClassResultsAccess): Promise<Clas
   return {
     ...results,
     session: { id: session.id, courseId: session.courseId, courseCode: session.courseCode, title: session.title, date: session.date, status: session.status },
-    reaction: { name: reaction.name, kUnit: system!.orderA + system!.orderB === 1 ? "1/s" : "L/(mol·s)", orderA: system!.orderA, orderB: system!.orderB },
-    canChange: access.canChange,
+    reaction: { name: reaction.name, kUnit: reaction.kUnit, orderA: reaction.orderA, orderB: reaction.orderB },
+    canChange: access.instructor,
   };
 }
 
 /** What a change gives back: done, or why not (the page shows it beside the form). */
 export type ChangeOutcome = { ok: true; bench: string } | { ok: false; status: 400 | 404 | 409; message: string; field?: "reason" | "benchId" };
 
-async function checkChange(session: LabSession, benchId: number): Promise<{ ok: false; status: 404 | 409; message: string; field?: "benchId" } | { ok: true; bench: Bench }> {
-  const course = await Course.findByPk(session.courseId);
-  if (course?.archivedAt) return { ok: false, status: 409, message: "The course is archived, so its class results are read-only. Take it out of the archive first." };
-  const bench = await Bench.findOne({ where: { id: benchId, sessionId: session.id } });
+async function checkChange(access: ClassResultsAccess, benchId: number): Promise<{ ok: false; status: 404 | 409; message: string; field?: "benchId" } | { ok: true; bench: Bench }> {
+  if (access.archived) return { ok: false, status: 409, message: "The course is archived, so its class results are read-only. Take it out of the archive first." };
+  const bench = await Bench.findOne({ where: { id: benchId, sessionId: access.sessionId } });
   if (!bench) return { ok: false, status: 404, field: "benchId", message: "There is no such bench in this practical." };
   return { ok: true, bench };
 }
 
 /** Leaves a bench out of the class fit with a reason (1-500 characters); audited in the same transaction. */
-export async function excludeBench(actor: User, session: LabSession, benchId: number, reason: string): Promise<ChangeOutcome> {
+export async function excludeBench(actor: User, access: ClassResultsAccess, benchId: number, reason: string): Promise<ChangeOutcome> {
   const why = reason.trim();
   if (!why) return { ok: false, status: 400, field: "reason", message: "Give a reason for leaving the bench out." };
   if (why.length > REASON_MAX) return { ok: false, status: 400, field: "reason", message: `Keep the reason to ${REASON_MAX} characters or fewer (it has ${why.length}).` };
-  const checked = await checkChange(session, benchId);
+  const checked = await checkChange(access, benchId);
   if (!checked.ok) return checked;
   const { bench } = checked;
   const already: ChangeOutcome = { ok: false, status: 409, field: "benchId", message: `Bench ${bench.label} is already left out of the fit.` };
   // The unique (session, bench) index refuses a second exclusion even when two arrive at once.
   return getSequelize().transaction(async (transaction): Promise<ChangeOutcome> => {
-    const existing = await ClassFitExclusion.findOne({ where: { sessionId: session.id, benchId }, transaction });
+    const existing = await ClassFitExclusion.findOne({ where: { sessionId: access.sessionId, benchId }, transaction });
     if (existing) return already;
-    const row = await ClassFitExclusion.create({ sessionId: session.id, benchId, reason: why, excludedById: actor.id }, { transaction });
+    const row = await ClassFitExclusion.create({ sessionId: access.sessionId, benchId, reason: why, excludedById: actor.id }, { transaction });
     await recordAudit(
-      { actorId: actor.id, action: "class-fit.bench-excluded", entityType: "lab_session", entityId: session.id, before: { bench: bench.label, inFit: true }, after: { bench: bench.label, benchId, inFit: false, reason: why, exclusionId: row.id } },
+      { actorId: actor.id, action: "class-fit.bench-excluded", entityType: "lab_session", entityId: access.sessionId, before: { bench: bench.label, inFit: true }, after: { bench: bench.label, benchId, inFit: false, reason: why, exclusionId: row.id } },
       transaction,
     );
     return { ok: true, bench: bench.label };
@@ -118,16 +110,16 @@ export async function excludeBench(actor: User, session: LabSession, benchId: nu
 }
 
 /** Puts a left-out bench back into the class fit; audited with the reason it had. */
-export async function includeBench(actor: User, session: LabSession, benchId: number): Promise<ChangeOutcome> {
-  const checked = await checkChange(session, benchId);
+export async function includeBench(actor: User, access: ClassResultsAccess, benchId: number): Promise<ChangeOutcome> {
+  const checked = await checkChange(access, benchId);
   if (!checked.ok) return checked;
   const { bench } = checked;
   return getSequelize().transaction(async (transaction): Promise<ChangeOutcome> => {
-    const existing = await ClassFitExclusion.findOne({ where: { sessionId: session.id, benchId }, transaction, lock: transaction.LOCK.UPDATE });
+    const existing = await ClassFitExclusion.findOne({ where: { sessionId: access.sessionId, benchId }, transaction, lock: transaction.LOCK.UPDATE });
     if (!existing) return { ok: false, status: 409, field: "benchId", message: `Bench ${bench.label} is not left out of the fit.` };
     await existing.destroy({ transaction });
     await recordAudit(
-      { actorId: actor.id, action: "class-fit.bench-included", entityType: "lab_session", entityId: session.id, before: { bench: bench.label, benchId, inFit: false, reason: existing.reason, excludedAt: existing.createdAt.toISOString() }, after: { bench: bench.label, inFit: true } },
+      { actorId: actor.id, action: "class-fit.bench-included", entityType: "lab_session", entityId: access.sessionId, before: { bench: bench.label, benchId, inFit: false, reason: existing.reason, excludedAt: existing.createdAt.toISOString() }, after: { bench: bench.label, inFit: true } },
       transaction,
     );
     return { ok: true, bench: bench.label };

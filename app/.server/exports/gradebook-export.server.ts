@@ -16,10 +16,11 @@ import { getSequelize } from "../db/sequelize.server";
 import { whileDatabaseUp } from "../db/unavailable.server";
 import { requireUser } from "../guards.server";
 import { parseId } from "../ids.server";
-import { requireCourseGradebookAt, requireSessionGradebook } from "../gradebook/access.server";
+import { requireCourseGradebook, requireSessionGradebook } from "../gradebook/access.server";
 import type { Exclusion, StoredReadings } from "../db/submissions.server";
 import { courseGradebook, type CourseGradebook, type CourseGradebookRow } from "../gradebook/course.server";
 import { sessionGradebook, type SessionGradebook, type SessionGradebookRow } from "../gradebook/session.server";
+import { courseVersion } from "../gradebook/cache.server";
 import { toCsv, type CellValue, type SheetColumn } from "~/lib/exports/table";
 import { unitText } from "~/lib/format";
 import { addTableSheet, CSV_TYPE, downloadName, downloadResponse, newWorkbook, sheetName, workbookBytes, XLSX_TYPE } from "./workbook.server";
@@ -94,16 +95,18 @@ export async function courseExportData(courseId: number, version?: string, now =
   const course = await courseGradebook(courseId, version);
   if (!course) return null;
   const ids = course.sessions.map((s) => s.id);
-  const [books, readings] = await Promise.all([Promise.all(ids.map((id) => sessionGradebook(id))), readingsOf(ids)]);
+  // Every practical is of this course: the course's version holds for each of them.
+  const at = version ?? (await courseVersion(courseId));
+  const [books, readings] = await Promise.all([Promise.all(ids.map((id) => sessionGradebook(id, at))), readingsOf(ids)]);
   const practicals = course.sessions.map((s, i) => part(i + 1, books[i]!, s.due, readings));
   return { kind: "course", course: course.course, students: course.rows, practicals, exportedAt: now };
 }
 
 /** Everything a practical's export shows (its course's students, this practical only), or null. */
-export async function sessionExportData(sessionId: number, now = new Date()): Promise<ExportData | null> {
-  const book = await sessionGradebook(sessionId);
+export async function sessionExportData(sessionId: number, version?: string, now = new Date()): Promise<ExportData | null> {
+  const book = await sessionGradebook(sessionId, version);
   if (!book) return null;
-  const [course, readings] = await Promise.all([courseGradebook(book.session.courseId), readingsOf([sessionId])]);
+  const [course, readings] = await Promise.all([courseGradebook(book.session.courseId, version), readingsOf([sessionId])]);
   // A draft is never due (the course gradebook leaves drafts out).
   const due = course!.sessions.find((s) => s.id === sessionId)?.due ?? false;
   return { kind: "session", course: course!.course, students: course!.rows, practicals: [part(1, book, due, readings)], exportedAt: now };
@@ -170,7 +173,7 @@ function practicalsColumns(fitSheets: Map<number, string>): SheetColumn<Practica
 }
 
 function kUnit(book: SessionGradebook) {
-  return unitText(book.reaction.orderA + book.reaction.orderB === 1 ? "1/s" : "L/(mol·s)");
+  return unitText(book.reaction.kUnit);
 }
 
 const STATUS_TEXT: Record<string, string> = { queued: "waiting to be marked", marked: "marked", refused: "refused", failed: "marking failed" };
@@ -354,13 +357,12 @@ export function exportDownload(request: Request, kind: "session" | "course", raw
     const user = await requireUser(request, { api: true });
     let data: ExportData | null;
     if (kind === "course") {
-      const { courseId, version } = await requireCourseGradebookAt(user, parseId(rawId), true);
+      const { courseId, version } = await requireCourseGradebook(user, parseId(rawId), true);
       data = await courseExportData(courseId, version);
     } else {
       const id = parseId(rawId);
-      if (id === null) return Response.json({ error: "There is no practical with this id." }, { status: 404 });
-      await requireSessionGradebook(user, id, true);
-      data = await sessionExportData(id);
+      const { version } = await requireSessionGradebook(user, id, true);
+      data = await sessionExportData(id!, version);
     }
     if (!data) return Response.json({ error: `There is no ${kind === "course" ? "course" : "practical"} with this id.` }, { status: 404 });
     const file = await exportFile(data, format);

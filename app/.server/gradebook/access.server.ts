@@ -4,60 +4,60 @@ import { data } from "react-router";
 import { QueryTypes } from "sequelize";
 import { getSequelize } from "../db/sequelize.server";
 import type { User } from "../db/models.server";
-import { requireSessionStaff } from "../submissions/context.server";
 
 function deny(status: 403 | 404, message: string, api: boolean): never {
   if (api) throw Response.json({ error: message }, { status });
   throw data({ message }, { status });
 }
 
-/** The course id when the caller may read its gradebook. */
-export async function requireCourseGradebook(user: User, courseId: number | null, api: boolean): Promise<number> {
-  return (await requireCourseGradebookAt(user, courseId, api)).courseId;
+export interface GradebookAt {
+  courseId: number;
+  /** the course's gradebook version, read in the same query (pass it on to the gradebook) */
+  version: string;
+  /** an instructor of the course, or an admin (who acts as one): may change settings and exclusions */
+  instructor: boolean;
+  /** the course is archived (read-only) */
+  archived: boolean;
 }
 
-/**
- * The same check, with the course's gradebook version read in the same query (the API path is
- * benchmarked at hundreds of requests a second: one round trip fewer).
- */
-export async function requireCourseGradebookAt(user: User, courseId: number | null, api: boolean): Promise<{ courseId: number; version: string }> {
-  if (courseId === null) deny(404, "There is no course with this id.", api);
-  const [row] = await getSequelize().query<{ id: number; role: string | null; version: string }>(
-    `select c.id, cm.role, coalesce(gv.version, 0)::text as version
-       from courses c
-       left join course_memberships cm on cm.course_id = c.id and cm.user_id = $2
-       left join gradebook_versions gv on gv.course_id = c.id
-      where c.id = $1`,
-    { bind: [courseId, user.id], type: QueryTypes.SELECT },
-  );
-  if (!row) deny(404, "There is no course with this id.", api);
-  const ok = { courseId: row.id, version: row.version };
-  if (user.role === "admin") return ok;
-  if (!row.role) deny(403, "You are not a member of this course.", api);
-  if (row.role !== "instructor" && row.role !== "demonstrator") deny(403, "Gradebooks are for the course's instructors and demonstrators.", api);
-  return ok;
+// The course, the caller's role in it and the course's gradebook version, from a course id or a
+// practical id: one query, as the gradebook API answers hundreds of requests a second.
+const ACCESS = {
+  course: `select c.id as course_id, cm.role, c.archived_at is not null as archived, coalesce(gv.version, 0)::text as version
+             from courses c
+             left join course_memberships cm on cm.course_id = c.id and cm.user_id = $2
+             left join gradebook_versions gv on gv.course_id = c.id
+            where c.id = $1`,
+  session: `select ls.course_id, cm.role, c.archived_at is not null as archived, coalesce(gv.version, 0)::text as version
+              from lab_sessions ls
+              join courses c on c.id = ls.course_id
+              left join course_memberships cm on cm.course_id = ls.course_id and cm.user_id = $2
+              left join gradebook_versions gv on gv.course_id = ls.course_id
+             where ls.id = $1`,
+};
+
+async function requireGradebookStaff(user: User, kind: keyof typeof ACCESS, id: number | null, notFound: string, api: boolean): Promise<GradebookAt> {
+  if (id === null) deny(404, notFound, api);
+  const [row] = await getSequelize().query<{ course_id: number; role: string | null; archived: boolean; version: string }>(ACCESS[kind], {
+    bind: [id, user.id],
+    type: QueryTypes.SELECT,
+  });
+  if (!row) deny(404, notFound, api);
+  if (user.role !== "admin") {
+    if (!row.role) deny(403, "You are not a member of this course.", api);
+    if (row.role !== "instructor" && row.role !== "demonstrator") deny(403, "Gradebooks are for the course's instructors and demonstrators.", api);
+  }
+  return { courseId: row.course_id, version: row.version, instructor: user.role === "admin" || row.role === "instructor", archived: row.archived };
 }
 
-/** A practical's gradebook check in one query, with its course's gradebook version (the API path). */
-export async function requireSessionGradebookAt(user: User, sessionId: number, api: boolean): Promise<{ sessionId: number; courseId: number; version: string }> {
-  const [row] = await getSequelize().query<{ course_id: number; role: string | null; version: string }>(
-    `select ls.course_id, cm.role, coalesce(gv.version, 0)::text as version
-       from lab_sessions ls
-       left join course_memberships cm on cm.course_id = ls.course_id and cm.user_id = $2
-       left join gradebook_versions gv on gv.course_id = ls.course_id
-      where ls.id = $1`,
-    { bind: [sessionId, user.id], type: QueryTypes.SELECT },
-  );
-  if (!row) deny(404, "There is no such practical.", api);
-  const ok = { sessionId, courseId: row.course_id, version: row.version };
-  if (user.role === "admin") return ok;
-  if (!row.role) deny(403, "You are not a member of this course.", api);
-  if (row.role !== "instructor" && row.role !== "demonstrator") deny(403, "Gradebooks are for the course's instructors and demonstrators.", api);
-  return ok;
+/** The caller may read the course's gradebook (its instructors and demonstrators, admins), or 403/404. */
+export function requireCourseGradebook(user: User, courseId: number | null, api: boolean): Promise<GradebookAt> {
+  return requireGradebookStaff(user, "course", courseId, "There is no course with this id.", api);
 }
 
-export function requireSessionGradebook(user: User, sessionId: number, api: boolean) {
-  return requireSessionStaff(user, sessionId, api);
+/** The caller may read the practical's gradebook, or 403/404. */
+export function requireSessionGradebook(user: User, sessionId: number | null, api: boolean): Promise<GradebookAt> {
+  return requireGradebookStaff(user, "session", sessionId, "There is no such practical.", api);
 }
 
 export interface QueryProblem {

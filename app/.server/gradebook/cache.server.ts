@@ -25,13 +25,13 @@ export async function courseVersion(courseId: number): Promise<string> {
   return row.version;
 }
 
-/** The course a practical belongs to and that course's version, or null when there is no such practical. */
-export async function sessionCourseVersion(sessionId: number): Promise<{ courseId: number; version: string } | null> {
-  const [row] = await getSequelize().query<{ course_id: number; version: string }>(
-    "select ls.course_id, coalesce(gv.version, 0)::text as version from lab_sessions ls left join gradebook_versions gv on gv.course_id = ls.course_id where ls.id = $1",
+/** The gradebook version of a practical's course, or null when there is no such practical. */
+export async function sessionCourseVersion(sessionId: number): Promise<string | null> {
+  const [row] = await getSequelize().query<{ version: string }>(
+    "select coalesce(gv.version, 0)::text as version from lab_sessions ls left join gradebook_versions gv on gv.course_id = ls.course_id where ls.id = $1",
     { bind: [sessionId], type: QueryTypes.SELECT },
   );
-  return row ? { courseId: row.course_id, version: row.version } : null;
+  return row?.version ?? null;
 }
 
 function deepFreeze<T>(value: T): T {

@@ -69,7 +69,7 @@ select cm.user_id, cm.student_number, u.display_name, u.email, gm.group_id, g.na
 
 /**
  * The course's gradebook (kept while nothing in it changes), or null when there is no such course.
- * Pass the version when the caller has just read it (requireCourseGradebookAt); else it is read here.
+ * Pass the version when the caller has just read it (requireCourseGradebook); else it is read here.
  */
 export async function courseGradebook(courseId: number, knownVersion?: string): Promise<CourseGradebook | null> {
   const version = knownVersion ?? (await courseVersion(courseId));

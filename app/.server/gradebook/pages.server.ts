@@ -5,10 +5,7 @@ import { data } from "react-router";
 import { z } from "zod";
 import { parseWithZod } from "@conform-to/zod/v4";
 import type { User } from "../db/models.server";
-import { Course } from "../db/models.server";
-import { ReactionSystem } from "../db/reaction-systems.server";
 import { parseId } from "../ids.server";
-import { ownCourseRole } from "../guards.server";
 import { requireCourseGradebook, requireSessionGradebook } from "./access.server";
 import { sessionGradebook } from "./session.server";
 import { courseGradebook } from "./course.server";
@@ -18,16 +15,10 @@ import { tableView } from "./table-views.server";
 export async function sessionGradebookPage(user: User, rawId: string | undefined) {
   const id = parseId(rawId);
   if (id === null) throw data({ message: "There is no practical at this address." }, { status: 404 });
-  const session = await requireSessionGradebook(user, id, false);
-  const [book, view, system] = await Promise.all([
-    sessionGradebook(session.id),
-    tableView(user.id, "session-gradebook"),
-    ReactionSystem.findByPk(session.reactionSystemId, { attributes: ["orderA", "orderB"] }),
-  ]);
+  const { version } = await requireSessionGradebook(user, id, false);
+  const [book, view] = await Promise.all([sessionGradebook(id, version), tableView(user.id, "session-gradebook")]);
   if (!book) throw data({ message: "There is no practical at this address." }, { status: 404 });
-  // k's unit follows the overall order of the rate law (k defined on A).
-  const overall = (system?.orderA ?? 1) + (system?.orderB ?? 1);
-  return { ...book, kUnit: overall === 1 ? "1/s" : "L/(mol·s)", view };
+  return { ...book, kUnit: book.reaction.kUnit, view };
 }
 
 /** One row of the course table as the page draws it (no e-mail, no ids it does not use). */
@@ -41,16 +32,9 @@ export interface CoursePageRow {
   missing: number;
 }
 
-async function courseForPage(user: User, rawId: string | undefined) {
-  const id = await requireCourseGradebook(user, parseId(rawId), false);
-  const course = await Course.findByPk(id, { attributes: ["id", "archivedAt"] });
-  const role = user.role === "admin" ? "instructor" : await ownCourseRole(user, id);
-  return { id, archived: course?.archivedAt != null, instructor: role === "instructor" };
-}
-
 export async function courseGradebookPage(user: User, rawId: string | undefined) {
-  const { id, archived, instructor } = await courseForPage(user, rawId);
-  const [book, view] = await Promise.all([courseGradebook(id), tableView(user.id, "course-gradebook")]);
+  const { courseId: id, version, archived, instructor } = await requireCourseGradebook(user, parseId(rawId), false);
+  const [book, view] = await Promise.all([courseGradebook(id, version), tableView(user.id, "course-gradebook")]);
   if (!book) throw data({ message: "There is no course at this address." }, { status: 404 });
   const rows: CoursePageRow[] = book.rows.map((r) => ({
     id: r.userId, studentId: r.studentId, name: r.name, group: r.group, marks: r.marks, total: r.total, missing: r.missing,
@@ -82,9 +66,9 @@ function settingsSchema(sessionIds: number[]) {
 
 /** The course page's settings form: check it, save it (audited) or answer with each field's message. */
 export async function saveCourseGradeSettings(user: User, rawId: string | undefined, form: FormData) {
-  const { id, archived, instructor } = await courseForPage(user, rawId);
+  const { courseId: id, version, archived, instructor } = await requireCourseGradebook(user, parseId(rawId), false);
   if (!instructor) throw data({ message: "Only the course's instructors change how the total is made." }, { status: 403 });
-  const book = await courseGradebook(id);
+  const book = await courseGradebook(id, version);
   const sessionIds = book!.sessions.map((s) => s.id);
   const submission = parseWithZod(form, { schema: settingsSchema(sessionIds) });
   if (archived) return { status: 400, result: submission.reply({ formErrors: ["This course is archived; take it out of the archive before changing it."] }) };

@@ -51,7 +51,8 @@ export interface SessionGradebook {
     deadline: string | null; marksReleasedAt: string | null; gradeWeight: number;
   };
   /** orders in A and B: k is per second (1/s) when they add up to 1, else L/(mol·s) */
-  reaction: { name: string; kRef: number; TrefC: number; EaKJ: number; measured: string; orderA: number; orderB: number };
+  /** kUnit: k's unit, from the rate law's overall order (k defined on A) */
+  reaction: { name: string; kRef: number; TrefC: number; EaKJ: number; measured: string; orderA: number; orderB: number; kUnit: "1/s" | "L/(mol·s)" };
   rows: SessionGradebookRow[];
 }
 
@@ -83,8 +84,8 @@ export function markOf(status: string | null, autoMark: number | null, overrideM
 
 /** The practical's gradebook (kept while nothing in its course changes), or null when there is no such practical. Staff only: the caller checks. */
 export async function sessionGradebook(sessionId: number, knownVersion?: string): Promise<SessionGradebook | null> {
-  const version = knownVersion ?? (await sessionCourseVersion(sessionId))?.version;
-  if (version === undefined) return null;
+  const version = knownVersion ?? (await sessionCourseVersion(sessionId));
+  if (version === null) return null;
   return cached(`session:${sessionId}`, version, async () => ({ value: await buildSessionGradebook(sessionId), validUntil: Infinity }));
 }
 
@@ -132,7 +133,8 @@ export async function buildSessionGradebook(sessionId: number): Promise<SessionG
       status: session.status, deadline: session.deadline?.toISOString() ?? null,
       marksReleasedAt: session.marksReleasedAt?.toISOString() ?? null, gradeWeight: session.gradeWeight,
     },
-    reaction: { name: system.name, kRef: system.kRef, TrefC: system.TrefC, EaKJ: system.EaKJ, measured: system.measured, orderA: system.orderA, orderB: system.orderB },
+    reaction: { name: system.name, kRef: system.kRef, TrefC: system.TrefC, EaKJ: system.EaKJ, measured: system.measured, orderA: system.orderA, orderB: system.orderB,
+      kUnit: system.orderA + system.orderB === 1 ? "1/s" : "L/(mol·s)" },
     rows,
   };
 }

@@ -3,7 +3,7 @@ import type { Route } from "./+types/session-gradebook";
 import { requireUser } from "~/.server/guards.server";
 import { parseId } from "~/.server/ids.server";
 import { whileDatabaseUp } from "~/.server/db/unavailable.server";
-import { requireSessionGradebookAt } from "~/.server/gradebook/access.server";
+import { requireSessionGradebook } from "~/.server/gradebook/access.server";
 import { sessionRowFilter } from "~/.server/gradebook/filters.server";
 import { sessionGradebook } from "~/.server/gradebook/session.server";
 import { cachedJson } from "~/.server/gradebook/cache.server";
@@ -12,11 +12,10 @@ export async function loader({ request, params }: Route.LoaderArgs) {
   return whileDatabaseUp(true, async () => {
     const user = await requireUser(request, { api: true });
     const id = parseId(params.sessionId);
-    if (id === null) return Response.json({ error: "There is no practical with this id." }, { status: 404 });
-    const { version } = await requireSessionGradebookAt(user, id, true);
+    const { version } = await requireSessionGradebook(user, id, true);
     const url = new URL(request.url);
     const keep = sessionRowFilter(url);
-    const book = (await sessionGradebook(id, version))!;
+    const book = (await sessionGradebook(id!, version))!;
     // No filter asked for: the kept JSON text, made once per version of the course.
     if (!url.search) return new Response(cachedJson(`session:${id}`, book), { headers: { "Content-Type": "application/json" } });
     return Response.json({ ...book, rows: book.rows.filter(keep) });

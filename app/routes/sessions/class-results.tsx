@@ -31,7 +31,7 @@ type ActionData = { tone: "info" | "error"; message: string; result?: FormResult
 export async function action({ request, params }: Route.ActionArgs) {
   return whileDatabaseUp(false, async () => {
     const user = await requireUser(request);
-    const session = await requireClassResultsChange(user, pathId(params.sessionId));
+    const access = await requireClassResultsChange(user, pathId(params.sessionId));
     const form = await readForm(request);
     const intent = String(form.get("intent") ?? "");
     const benchId = formId(form, "benchId");
@@ -41,13 +41,13 @@ export async function action({ request, params }: Route.ActionArgs) {
       if (submission.status !== "success" || benchId === null) {
         return data<ActionData>({ tone: "error", message: "The bench was not left out: see the form.", result: submission.reply(), benchError }, { status: 400 });
       }
-      const r = await excludeBench(user, session, benchId, submission.value.reason);
+      const r = await excludeBench(user, access, benchId, submission.value.reason);
       if (!r.ok) return data<ActionData>({ tone: "error", message: r.message, result: submission.reply(), benchError: r.field === "benchId" ? r.message : undefined }, { status: r.status });
       return data<ActionData>({ tone: "info", message: `Bench ${r.bench} is left out of the class fit; the fit below is without it.` });
     }
     if (intent === "include") {
       if (benchId === null) return data<ActionData>({ tone: "error", message: "Which bench? The form lost its bench id." }, { status: 400 });
-      const r = await includeBench(user, session, benchId);
+      const r = await includeBench(user, access, benchId);
       if (!r.ok) return data<ActionData>({ tone: "error", message: r.message }, { status: r.status });
       return data<ActionData>({ tone: "info", message: `Bench ${r.bench} is back in the class fit.` });
     }
