@@ -6,8 +6,8 @@
 import fs from "node:fs";
 import path from "node:path";
 import { afterAll, beforeAll, describe, expect, test } from "vitest";
-import { chromium, type Browser, type Page } from "playwright-core";
-import { CHROMIUM_ARGS, CHROMIUM_PATH, contextWithCookie, horizontalOverflow, seriousAxeViolations, smallestPlotText, startAppServer } from "./harness";
+import type { Browser, Page } from "playwright-core";
+import { contextWithCookie, horizontalOverflow, seriousAxeViolations, smallestPlotText, startBrowserApp, stopBrowserApp, type AppServer } from "./harness";
 import { makePractical, type Practical } from "../integration/practical-fixture";
 import { createSubmission } from "~/.server/submissions/service.server";
 import { markSubmission } from "~/.server/submissions/marking.server";
@@ -15,7 +15,7 @@ import { closeSequelize } from "~/.server/db/sequelize.server";
 import { runCsv, simulateRun, type Mistake } from "~/lib/marking/simulate";
 
 const shots = path.resolve(import.meta.dirname, "..", "..", "test-results");
-let server: Awaited<ReturnType<typeof startAppServer>>;
+let server: AppServer;
 let browser: Browser;
 let p: Practical;
 let staff: string;
@@ -39,13 +39,11 @@ beforeAll(async () => {
   await upload(2);
   await upload(3, "minutes-as-seconds");
   staff = await p.cookie(p.instructor);
-  server = await startAppServer();
-  browser = await chromium.launch({ executablePath: CHROMIUM_PATH, args: CHROMIUM_ARGS });
+  ({ server, browser } = await startBrowserApp());
 }, 180_000);
 
 afterAll(async () => {
-  await browser?.close();
-  server?.stop();
+  await stopBrowserApp(server, browser);
   await p?.course.destroy();
   await closeSequelize();
 });

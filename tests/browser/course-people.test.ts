@@ -3,23 +3,21 @@
 // stays where it was. The account page lists where one is signed in.
 import path from "node:path";
 import { afterAll, beforeAll, describe, expect, test } from "vitest";
-import { chromium, type Browser } from "playwright-core";
-import { CHROMIUM_ARGS, CHROMIUM_PATH, contextWithCookie, seriousAxeViolations, startAppServer } from "./harness";
+import type { Browser } from "playwright-core";
+import { contextWithCookie, seriousAxeViolations, startBrowserApp, stopBrowserApp, type AppServer } from "./harness";
 import { call, demoCookie, request } from "../integration/helpers";
 import { action as newCourseAction } from "~/routes/courses/new";
 
 const shots = path.resolve(import.meta.dirname, "..", "..", "test-results");
-let server: Awaited<ReturnType<typeof startAppServer>>;
+let server: AppServer;
 let browser: Browser;
 
 beforeAll(async () => {
-  server = await startAppServer();
-  browser = await chromium.launch({ executablePath: CHROMIUM_PATH, args: CHROMIUM_ARGS });
+  ({ server, browser } = await startBrowserApp());
 }, 180_000);
 
 afterAll(async () => {
-  await browser?.close();
-  server?.stop();
+  await stopBrowserApp(server, browser);
 });
 
 describe("course page", () => {

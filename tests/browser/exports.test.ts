@@ -7,8 +7,8 @@ import fs from "node:fs";
 import path from "node:path";
 import ExcelJS from "exceljs";
 import { afterAll, beforeAll, describe, expect, test } from "vitest";
-import { chromium, type Browser, type Page } from "playwright-core";
-import { CHROMIUM_ARGS, CHROMIUM_PATH, contextWithCookie, horizontalOverflow, seriousAxeViolations, startAppServer } from "./harness";
+import type { Browser, Page } from "playwright-core";
+import { contextWithCookie, horizontalOverflow, seriousAxeViolations, startBrowserApp, stopBrowserApp, type AppServer } from "./harness";
 import { makePractical, type Practical } from "../integration/practical-fixture";
 import { createSubmission } from "~/.server/submissions/service.server";
 import { markSubmission } from "~/.server/submissions/marking.server";
@@ -17,7 +17,7 @@ import { runCsv, simulateRun } from "~/lib/marking/simulate";
 
 const shots = path.resolve(import.meta.dirname, "..", "..", "test-results");
 const today = new Date().toISOString().slice(0, 10);
-let server: Awaited<ReturnType<typeof startAppServer>>;
+let server: AppServer;
 let browser: Browser;
 let p: Practical;
 let staff: string;
@@ -32,13 +32,11 @@ beforeAll(async () => {
     { sessionId: String(p.session.id), measured: "concentrationA", reportedK: String(run.reportedK), reportedMethod: run.reportedMethod }, true);
   await markSubmission(created.id);
   staff = await p.cookie(p.instructor);
-  server = await startAppServer();
-  browser = await chromium.launch({ executablePath: CHROMIUM_PATH, args: CHROMIUM_ARGS });
+  ({ server, browser } = await startBrowserApp());
 }, 180_000);
 
 afterAll(async () => {
-  await browser?.close();
-  server?.stop();
+  await stopBrowserApp(server, browser);
   await p?.course.destroy();
   await closeSequelize();
 });

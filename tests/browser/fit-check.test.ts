@@ -3,18 +3,17 @@
 import fs from "node:fs";
 import path from "node:path";
 import { afterAll, beforeAll, describe, expect, test } from "vitest";
-import { chromium, type Browser, type Page } from "playwright-core";
-import { CHROMIUM_ARGS, CHROMIUM_PATH, seriousAxeViolations, signIn, startAppServer } from "./harness";
+import type { Browser, Page } from "playwright-core";
+import { seriousAxeViolations, signIn, startBrowserApp, stopBrowserApp, type AppServer } from "./harness";
 
 const shots = path.resolve(import.meta.dirname, "..", "..", "test-results");
-let server: Awaited<ReturnType<typeof startAppServer>>;
+let server: AppServer;
 let browser: Browser;
 let page: Page;
 
 beforeAll(async () => {
   fs.mkdirSync(shots, { recursive: true });
-  server = await startAppServer();
-  browser = await chromium.launch({ executablePath: CHROMIUM_PATH, args: CHROMIUM_ARGS });
+  ({ server, browser } = await startBrowserApp());
   // bypassCSP so axe-core can be injected (tests/browser/harness.ts).
   page = await browser.newPage({ viewport: { width: 1280, height: 900 }, bypassCSP: true });
   await page.goto(`${server.url}/sign-in?returnTo=%2Ffit-check`);
@@ -23,8 +22,7 @@ beforeAll(async () => {
 }, 180_000);
 
 afterAll(async () => {
-  await browser?.close();
-  server?.stop();
+  await stopBrowserApp(server, browser);
 });
 
 describe("check a data set", () => {

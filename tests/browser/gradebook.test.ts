@@ -6,8 +6,8 @@ import fs from "node:fs";
 import path from "node:path";
 import { Op } from "sequelize";
 import { afterAll, beforeAll, describe, expect, test } from "vitest";
-import { chromium, type Browser, type Page } from "playwright-core";
-import { CHROMIUM_ARGS, CHROMIUM_PATH, contextWithCookie, horizontalOverflow, seriousAxeViolations, startAppServer } from "./harness";
+import type { Browser, Page } from "playwright-core";
+import { contextWithCookie, horizontalOverflow, seriousAxeViolations, startBrowserApp, stopBrowserApp, type AppServer } from "./harness";
 import { CourseMembership, User } from "~/.server/db/models.server";
 import { Submission } from "~/.server/db/submissions.server";
 import { closeSequelize } from "~/.server/db/sequelize.server";
@@ -16,7 +16,7 @@ import { makePractical, type Practical } from "../integration/practical-fixture"
 const shots = path.resolve(import.meta.dirname, "..", "..", "test-results", "gradebook");
 let p: Practical;
 let cookie: string;
-let server: Awaited<ReturnType<typeof startAppServer>>;
+let server: AppServer;
 let browser: Browser;
 
 // Invented given names and family names; 20 × 30 = 600 combinations, the first 593 used.
@@ -49,13 +49,11 @@ beforeAll(async () => {
   const users = await User.bulkCreate(names.map((displayName, i) => ({ email: `gbb-x${i}@test.ratebook.invalid`, displayName, role: "member" as const, passwordHash: null })));
   await CourseMembership.bulkCreate(users.map((u, i) => ({ courseId: p.course.id, userId: u.id, role: "student" as const, studentNumber: `T${String(i).padStart(4, "0")}` })));
 
-  server = await startAppServer();
-  browser = await chromium.launch({ executablePath: CHROMIUM_PATH, args: CHROMIUM_ARGS });
+  ({ server, browser } = await startBrowserApp());
 }, 180_000);
 
 afterAll(async () => {
-  await browser?.close();
-  server?.stop();
+  await stopBrowserApp(server, browser);
   await p?.course.destroy();
   await User.destroy({ where: { email: { [Op.like]: "gbb-x%@test.ratebook.invalid" } } });
   await closeSequelize();

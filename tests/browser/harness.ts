@@ -1,7 +1,7 @@
 // Browser-test harness: the built app (react-router-serve) against the test database, the
 // chromium flags for this sandbox, and signing in through the real form.
 import { spawn, spawnSync, type ChildProcess } from "node:child_process";
-import type { Page } from "playwright-core";
+import { chromium, type Browser, type Page } from "playwright-core";
 import fs from "node:fs";
 import path from "node:path";
 import { testEnv, TEST_APP_PORT } from "../setup/test-env";
@@ -46,6 +46,21 @@ export async function startAppServer(): Promise<{ url: string; stop: () => void 
   }
   child.kill("SIGTERM");
   throw new Error(`the app server did not start on ${url}:\n${output}`);
+}
+
+export type AppServer = Awaited<ReturnType<typeof startAppServer>>;
+
+/** The built app and Debian's chromium, as every browser test file starts them in beforeAll. */
+export async function startBrowserApp(): Promise<{ server: AppServer; browser: Browser }> {
+  const server = await startAppServer();
+  const browser = await chromium.launch({ executablePath: CHROMIUM_PATH, args: CHROMIUM_ARGS });
+  return { server, browser };
+}
+
+/** Their end in afterAll (either may be missing when beforeAll failed). */
+export async function stopBrowserApp(server: AppServer | undefined, browser: Browser | undefined) {
+  await browser?.close();
+  server?.stop();
 }
 
 /** Fills and submits the sign-in form on the current page. */

@@ -3,21 +3,19 @@
 // chunked body past the limit refused with 413 while it is still being sent.
 import http from "node:http";
 import { afterAll, beforeAll, describe, expect, test } from "vitest";
-import { chromium, type Browser } from "playwright-core";
-import { CHROMIUM_ARGS, CHROMIUM_PATH, signIn, startAppServer } from "./harness";
+import type { Browser } from "playwright-core";
+import { signIn, startBrowserApp, stopBrowserApp, type AppServer } from "./harness";
 import { demoCookie } from "../integration/helpers";
 
-let server: Awaited<ReturnType<typeof startAppServer>>;
+let server: AppServer;
 let browser: Browser;
 
 beforeAll(async () => {
-  server = await startAppServer();
-  browser = await chromium.launch({ executablePath: CHROMIUM_PATH, args: CHROMIUM_ARGS });
+  ({ server, browser } = await startBrowserApp());
 }, 180_000);
 
 afterAll(async () => {
-  await browser?.close();
-  server?.stop();
+  await stopBrowserApp(server, browser);
 });
 
 function expectCommonHeaders(res: Response) {

@@ -5,8 +5,8 @@
 import fs from "node:fs";
 import path from "node:path";
 import { afterAll, beforeAll, describe, expect, test } from "vitest";
-import { chromium, type Browser, type Page } from "playwright-core";
-import { CHROMIUM_ARGS, CHROMIUM_PATH, signIn, startAppServer } from "./harness";
+import type { Browser, Page } from "playwright-core";
+import { signIn, startBrowserApp, stopBrowserApp, type AppServer } from "./harness";
 import { Course } from "~/.server/db/models.server";
 import { Bench, LabSession } from "~/.server/db/lab-sessions.server";
 import { runJobsUntilIdle } from "~/.server/jobs/worker.server";
@@ -14,20 +14,18 @@ import { closeSequelize } from "~/.server/db/sequelize.server";
 import { mailTo } from "../integration/helpers";
 
 const shots = path.resolve(import.meta.dirname, "..", "..", "test-results");
-let server: Awaited<ReturnType<typeof startAppServer>>;
+let server: AppServer;
 let browser: Browser;
 let courseId: number;
 
 beforeAll(async () => {
   fs.mkdirSync(shots, { recursive: true });
-  server = await startAppServer();
-  browser = await chromium.launch({ executablePath: CHROMIUM_PATH, args: CHROMIUM_ARGS });
+  ({ server, browser } = await startBrowserApp());
   courseId = (await Course.findOne({ where: { code: "KIN-DEMO" } }))!.id;
 }, 180_000);
 
 afterAll(async () => {
-  await browser?.close();
-  server?.stop();
+  await stopBrowserApp(server, browser);
   await closeSequelize();
 });
 

@@ -6,14 +6,14 @@
 import fs from "node:fs";
 import path from "node:path";
 import { afterAll, beforeAll, describe, expect, test } from "vitest";
-import { chromium, type Browser } from "playwright-core";
-import { CHROMIUM_ARGS, CHROMIUM_PATH, contextWithCookie, horizontalOverflow, seriousAxeViolations, smallestPlotText, startAppServer } from "./harness";
+import type { Browser } from "playwright-core";
+import { contextWithCookie, horizontalOverflow, seriousAxeViolations, smallestPlotText, startBrowserApp, stopBrowserApp, type AppServer } from "./harness";
 import { signInAs } from "../integration/helpers";
 import { ACCESS, SIGN_INS, fillUrl, makeFixtures, type Visitor } from "../access/table";
 
 const shots = path.resolve(import.meta.dirname, "..", "..", "test-results", "390");
 const PHONE = { width: 390, height: 844 };
-let server: Awaited<ReturnType<typeof startAppServer>>;
+let server: AppServer;
 let browser: Browser;
 let fixtures: Record<string, string>;
 const cookies: Partial<Record<Visitor, string>> = {};
@@ -27,13 +27,11 @@ async function cookieFor(who: Visitor) {
 beforeAll(async () => {
   fs.mkdirSync(shots, { recursive: true });
   fixtures = await makeFixtures();
-  server = await startAppServer();
-  browser = await chromium.launch({ executablePath: CHROMIUM_PATH, args: CHROMIUM_ARGS });
+  ({ server, browser } = await startBrowserApp());
 }, 180_000);
 
 afterAll(async () => {
-  await browser?.close();
-  server?.stop();
+  await stopBrowserApp(server, browser);
 });
 
 describe("every page at 390 px, and axe-core", () => {

@@ -3,11 +3,11 @@
 import fs from "node:fs";
 import path from "node:path";
 import { afterAll, beforeAll, describe, expect, test } from "vitest";
-import { chromium, type Browser } from "playwright-core";
-import { CHROMIUM_ARGS, CHROMIUM_PATH, seriousAxeViolations, signIn, startAppServer } from "./harness";
+import type { Browser } from "playwright-core";
+import { CHROMIUM_PATH, seriousAxeViolations, signIn, startBrowserApp, stopBrowserApp, type AppServer } from "./harness";
 
 const shots = path.resolve(import.meta.dirname, "..", "..", "test-results");
-let server: Awaited<ReturnType<typeof startAppServer>>;
+let server: AppServer;
 let browser: Browser;
 
 beforeAll(async () => {
@@ -15,13 +15,11 @@ beforeAll(async () => {
     throw new Error(`Chromium not found at ${CHROMIUM_PATH}. Install Debian's package: apt-get install -y chromium (npm test does this when run as root).`);
   }
   fs.mkdirSync(shots, { recursive: true });
-  server = await startAppServer();
-  browser = await chromium.launch({ executablePath: CHROMIUM_PATH, args: CHROMIUM_ARGS });
+  ({ server, browser } = await startBrowserApp());
 }, 180_000);
 
 afterAll(async () => {
-  await browser?.close();
-  server?.stop();
+  await stopBrowserApp(server, browser);
 });
 
 describe("browser", () => {

@@ -4,8 +4,8 @@
 import fs from "node:fs";
 import path from "node:path";
 import { afterAll, beforeAll, describe, expect, test } from "vitest";
-import { chromium, type Browser, type Page } from "playwright-core";
-import { CHROMIUM_ARGS, CHROMIUM_PATH, signIn, startAppServer } from "./harness";
+import type { Browser, Page } from "playwright-core";
+import { signIn, startBrowserApp, stopBrowserApp, type AppServer } from "./harness";
 import { submissionFixture, type SubmissionFixture } from "../access/submission-fixture";
 import { runJobsUntilIdle } from "~/.server/jobs/worker.server";
 import { closeSequelize } from "~/.server/db/sequelize.server";
@@ -15,7 +15,7 @@ import { rateConstantAt } from "~/lib/kinetics";
 import { simulateRun } from "~/lib/marking/simulate";
 
 const shots = path.resolve(import.meta.dirname, "..", "..", "test-results");
-let server: Awaited<ReturnType<typeof startAppServer>>;
+let server: AppServer;
 let browser: Browser;
 let fx: SubmissionFixture;
 
@@ -42,13 +42,11 @@ beforeAll(async () => {
   fs.mkdirSync(shots, { recursive: true });
   fx = await submissionFixture();
   await inventedReadings(fx.groupId);
-  server = await startAppServer();
-  browser = await chromium.launch({ executablePath: CHROMIUM_PATH, args: CHROMIUM_ARGS });
+  ({ server, browser } = await startBrowserApp());
 }, 180_000);
 
 afterAll(async () => {
-  await browser?.close();
-  server?.stop();
+  await stopBrowserApp(server, browser);
   await closeSequelize();
 });
 
