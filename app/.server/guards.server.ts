@@ -151,8 +151,5 @@ export async function requireCourseFromPath(request: Request, rawCourseId: strin
   return { user, course, role };
 }
 
-/** Only relative paths inside the app, so a crafted link cannot send people elsewhere. */
-export function safeReturnTo(raw: unknown, fallback = "/dashboard") {
-  const value = typeof raw === "string" ? raw : "";
-  return value.startsWith("/") && !value.startsWith("//") && !value.startsWith("/\\") ? value : fallback;
-}
+/** Only paths inside the app, so a crafted link cannot send people elsewhere (app/lib/return-to.ts). */
+export { safeReturnTo } from "~/lib/return-to";

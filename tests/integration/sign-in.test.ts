@@ -68,3 +68,27 @@ describe("sign-in", () => {
     expect(res.headers.get("Location")).toBe("/courses/1");
   });
 });
+
+describe("return address after sign-in", () => {
+  // Browsers drop tabs and line breaks from a Location, so "/\t/evil" would become "//evil";
+  // a line break or non-ASCII character in a header value used to throw (500).
+  test.each(["/%09/evil.example", "/%0a/evil.example", "/%0d%0aSet-Cookie:%20x=1", "/%E2%80%AE/evil", "/caf%C3%A9//x", "/.//evil.example"])(
+    "a signed-in visitor with returnTo=%s stays in the app",
+    async (raw) => {
+      const ok = await call(signIn, form("student@demo.ratebook.invalid", "demo-student-pass"));
+      const res = await call(signInLoader, request(`/sign-in?returnTo=${raw}`, { cookie: cookieFrom(ok) }));
+      expect(res.status).toBe(302);
+      const location = res.headers.get("Location")!;
+      expect(location.startsWith("/") && !location.startsWith("//")).toBe(true);
+      expect(/^[\x21-\x7e]+$/.test(location)).toBe(true);
+    },
+  );
+
+  test("the sign-in form's hidden field goes through the same parser", async () => {
+    const res = await call(signIn, form("student@demo.ratebook.invalid", "demo-student-pass", "/\t/evil.example"));
+    expect(res.headers.get("Location")).toBe("/dashboard");
+    const crlf = await call(signIn, form("student@demo.ratebook.invalid", "demo-student-pass", "/x\r\nSet-Cookie: a=b"));
+    expect(crlf.status).toBe(302);
+    expect(crlf.headers.get("Location")).toBe("/dashboard");
+  });
+});
