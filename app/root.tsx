@@ -7,6 +7,12 @@ import "./app.css";
 // Every answer the app makes (pages, data requests, the JSON API, redirects) gets the security headers.
 export const middleware: Route.MiddlewareFunction[] = [async (_args, next) => withSecurityHeaders(await next())];
 
+// The request id (set by the production server) travels with every document and data request,
+// so an error page can name the request whose log lines tell what happened.
+export function loader({ request }: Route.LoaderArgs) {
+  return { requestId: request.headers.get("x-request-id") };
+}
+
 export const meta: Route.MetaFunction = () => [{ title: "Ratebook" }];
 
 export const links: Route.LinksFunction = () => [{ rel: "icon", href: "/favicon.svg", type: "image/svg+xml" }];

@@ -1,6 +1,8 @@
 // `npm start` : everything for a local demo in one command. Starts PostgreSQL on loopback,
 // migrates, adds the demo data, starts the local mail sink, builds, serves, prints sign-ins.
 import { spawn, spawnSync } from "node:child_process";
+import crypto from "node:crypto";
+import fs from "node:fs";
 import path from "node:path";
 import { openAppDatabase } from "./lib/database";
 import { startMailSink } from "./lib/mail-sink";
@@ -42,8 +44,19 @@ console.log("[jobs] worker running in this process");
 // The local demo is served over plain http, where a Secure cookie would never come back.
 env.SESSION_COOKIE_SECURE ??= "0";
 env.APP_URL ??= `http://localhost:${port}`;
-// Loopback only unless told otherwise: the demo runs with a development session secret.
+// The production server refuses a short secret: the demo makes one for this clone and keeps it
+// (so sessions survive a restart) in .data/session-secret.
+env.SESSION_SECRET ??= demoSessionSecret(path.join(projectRoot, ".data", "session-secret"));
+// Loopback only unless told otherwise: it is a demo with published sign-ins.
 env.HOST ??= "127.0.0.1";
+
+function demoSessionSecret(file: string): string {
+  if (fs.existsSync(file)) return fs.readFileSync(file, "utf8").trim();
+  fs.mkdirSync(path.dirname(file), { recursive: true });
+  const secret = crypto.randomBytes(32).toString("hex");
+  fs.writeFileSync(file, `${secret}\n`, { mode: 0o600 });
+  return secret;
+}
 
 if (process.env.SKIP_BUILD !== "1") {
   console.log("[build] react-router build ...");
@@ -54,7 +67,7 @@ if (process.env.SKIP_BUILD !== "1") {
   }
 }
 
-const server = spawn(bin("react-router-serve"), ["./build/server/index.js"], { cwd: projectRoot, env, stdio: ["ignore", "pipe", "inherit"] });
+const server = spawn(bin("tsx"), ["scripts/serve.ts"], { cwd: projectRoot, env, stdio: ["ignore", "pipe", "inherit"] });
 server.stdout.on("data", (chunk: Buffer) => {
   process.stdout.write(chunk);
   if (chunk.toString().includes("http://")) printSignIns();

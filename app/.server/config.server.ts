@@ -6,9 +6,48 @@ function int(name: string, fallback: number) {
   return v ? Number(v) : fallback;
 }
 
+/** Shortest session secret accepted in production (256 bits of hex or base64 is 43-64 characters). */
+export const MIN_SECRET_LENGTH = 32;
+
+/**
+ * SESSION_SECRET may list several secrets, separated by commas or spaces: the first signs new
+ * cookies, every one still verifies, so a secret is rotated by putting the new one first and
+ * removing the old one a session lifetime later.
+ */
+export function sessionSecretsFrom(value: string | undefined): string[] {
+  const list = (value ?? "").split(/[\s,]+/).filter(Boolean);
+  return list.length ? list : [DEV_SECRET];
+}
+
+/** What stops a production server or worker from starting (empty when it may start). */
+export function productionConfigProblems(env: NodeJS.ProcessEnv = process.env, part: "server" | "worker" = "server"): string[] {
+  if (env.NODE_ENV !== "production") return [];
+  const problems: string[] = [];
+  if (part === "server") problems.push(...secretProblems(env));
+  if (!env.APP_URL) problems.push("APP_URL is not set: set it to the address people use, e.g. https://ratebook.example.org (page forms are accepted only from it; mailed links use it).");
+  else {
+    try {
+      new URL(env.APP_URL);
+    } catch {
+      problems.push(`APP_URL (${env.APP_URL}) is not a URL: write it as https://host[:port].`);
+    }
+  }
+  return problems;
+}
+
+function secretProblems(env: NodeJS.ProcessEnv): string[] {
+  const problems: string[] = [];
+  const secrets = (env.SESSION_SECRET ?? "").split(/[\s,]+/).filter(Boolean);
+  if (!secrets.length) problems.push("SESSION_SECRET is not set: set it to a long random string (e.g. `openssl rand -hex 32`), the same on every app server.");
+  const short = secrets.filter((s) => s.length < MIN_SECRET_LENGTH || s === DEV_SECRET);
+  if (short.length) problems.push(`SESSION_SECRET: ${short.length === 1 && secrets.length === 1 ? "the secret" : `${short.length} of its ${secrets.length} secrets`} ${short.length === 1 ? "is" : "are"} shorter than ${MIN_SECRET_LENGTH} characters or the development default; use a long random string (e.g. \`openssl rand -hex 32\`).`);
+  return problems;
+}
+
 export const config = {
   databaseUrl: process.env.DATABASE_URL ?? `postgres://ratebook@127.0.0.1:${int("RATEBOOK_PG_PORT", 54329)}/ratebook`,
-  sessionSecret: process.env.SESSION_SECRET ?? DEV_SECRET,
+  /** the first signs; all verify (rotation) */
+  sessionSecrets: sessionSecretsFrom(process.env.SESSION_SECRET),
   usingDevSecret: !process.env.SESSION_SECRET,
   smtpUrl: process.env.SMTP_URL ?? `smtp://127.0.0.1:${int("MAIL_SINK_SMTP_PORT", 2525)}`,
   mailFrom: process.env.MAIL_FROM ?? "Ratebook <no-reply@ratebook.invalid>",

@@ -4,11 +4,15 @@
 import crypto from "node:crypto";
 import { Op, QueryTypes, type Transaction } from "sequelize";
 import { createCookie, redirect } from "react-router";
-import { config } from "./config.server";
+import { config, productionConfigProblems } from "./config.server";
 import { User, sequelize } from "./db/models.server";
 import { readSignedCookie } from "./signed-cookie.server";
 import { UserSession } from "./db/user-session.server";
 
+// A production server refuses to run with a missing or short secret (scripts/serve.ts says so
+// before it listens; this catches any other way of loading the app).
+const problems = productionConfigProblems();
+if (problems.length) throw new Error(`Ratebook refuses to start in production:\n- ${problems.join("\n- ")}`);
 if (config.usingDevSecret) {
   console.warn(
     "\n!!! SESSION_SECRET is not set: using the development default, so sessions can be forged.\n" +
@@ -33,7 +37,7 @@ export const sessionCookie = createCookie("__ratebook_session", {
   sameSite: "lax",
   path: "/",
   secure: config.secureCookies,
-  secrets: [config.sessionSecret],
+  secrets: config.sessionSecrets,
   maxAge: SESSION_LIFETIME_MS / 1000,
 });
 
@@ -44,7 +48,7 @@ function digest(token: string) {
 async function tokenFrom(request: Request): Promise<string | null> {
   // node:crypto rather than sessionCookie.parse (Web Crypto): same check, a fraction of the cost
   // on every request (signed-cookie.server.ts).
-  const value = readSignedCookie(request.headers.get("Cookie"), sessionCookie.name, [config.sessionSecret]);
+  const value = readSignedCookie(request.headers.get("Cookie"), sessionCookie.name, config.sessionSecrets);
   return typeof value === "string" && value.length >= 32 ? value : null;
 }
 

@@ -1,4 +1,4 @@
-import { isRouteErrorResponse } from "react-router";
+import { isRouteErrorResponse, useRouteLoaderData } from "react-router";
 
 /** Turns whatever a route threw into words a person can act on (404, 403, 401, 500). */
 export function describeError(error: unknown): { status: number; title: string; detail: string } {
@@ -24,6 +24,7 @@ export function describeError(error: unknown): { status: number; title: string; 
 
 export function ErrorPanel({ error, signedIn }: { error: unknown; signedIn: boolean }) {
   const { status, title, detail } = describeError(error);
+  const requestId = (useRouteLoaderData("root") as { requestId?: string | null } | undefined)?.requestId;
   return (
     <div className="mx-auto max-w-xl py-8">
       <p className="text-sm text-ink-soft">Ratebook · error {status}</p>
@@ -33,6 +34,11 @@ export function ErrorPanel({ error, signedIn }: { error: unknown; signedIn: bool
         <a className="text-accent underline" href="/dashboard">Go to your dashboard</a>
         {signedIn ? null : <a className="text-accent underline" href="/sign-in">Sign in</a>}
       </p>
+      {requestId ? (
+        <p className="mt-6 text-sm text-ink-soft">
+          Reference for your administrator: <code className="break-all">{requestId}</code>
+        </p>
+      ) : null}
       {import.meta.env.DEV && error instanceof Error && error.stack ? <pre className="mt-6 overflow-auto text-xs">{error.stack}</pre> : null}
     </div>
   );

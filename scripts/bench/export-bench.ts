@@ -25,7 +25,7 @@ const REFERENCE = { kRef: 0.11, TrefC: 25, EaKJ: 50 };
 
 delete process.env.DATABASE_URL;
 process.env.DATABASE_URL = await ensurePostgres(DB_NAME, { reset: true });
-process.env.SESSION_SECRET ??= "bench-only-session-secret";
+process.env.SESSION_SECRET ??= "bench-only-session-secret-of-32-characters-or-more";
 process.env.BCRYPT_COST ??= "4";
 
 const { getSequelize, closeSequelize } = await import("../../app/.server/db/sequelize.server");

@@ -1,4 +1,4 @@
-// Browser-test harness: the built app (react-router-serve) against the test database, the
+// Browser-test harness: the built app (`npm run serve`'s server, scripts/serve.ts) against the test database, the
 // chromium flags for this sandbox, and signing in through the real form.
 import { spawn, spawnSync, type ChildProcess } from "node:child_process";
 import { chromium, type Browser, type Page } from "playwright-core";
@@ -22,22 +22,27 @@ export const CHROMIUM_ARGS = [
   "--disable-sync",
 ];
 
-export async function startAppServer(): Promise<{ url: string; stop: () => void }> {
+/**
+ * The built app as `npm run serve` runs it. `extraEnv` overrides the test environment (a test of
+ * the server itself may run a second one on `PORT`); `output()` is what it has printed so far.
+ */
+export async function startAppServer(extraEnv: Record<string, string> = {}): Promise<{ url: string; stop: () => Promise<void>; output: () => string }> {
   if (!fs.existsSync(path.join(root, "build", "server", "index.js"))) {
     const build = spawnSync(bin("react-router"), ["build"], { cwd: root, encoding: "utf8" });
     if (build.status !== 0) throw new Error(`react-router build failed:\n${build.stderr}`);
   }
-  const env = { ...process.env, ...testEnv, PORT: String(TEST_APP_PORT), HOST: "127.0.0.1", NODE_ENV: "production", SESSION_COOKIE_SECURE: "0" };
-  const child: ChildProcess = spawn(bin("react-router-serve"), ["./build/server/index.js"], { cwd: root, env, stdio: ["ignore", "pipe", "pipe"] });
+  // LOG_LEVEL=warn: the request log of a whole browser test would drown a failure's output.
+  const env = { ...process.env, ...testEnv, PORT: String(TEST_APP_PORT), HOST: "127.0.0.1", NODE_ENV: "production", SESSION_COOKIE_SECURE: "0", LOG_LEVEL: "warn", ...extraEnv };
+  const child: ChildProcess = spawn(bin("tsx"), ["scripts/serve.ts"], { cwd: root, env, stdio: ["ignore", "pipe", "pipe"] });
   let output = "";
   child.stdout!.on("data", (c) => (output += c));
   child.stderr!.on("data", (c) => (output += c));
-  const url = `http://127.0.0.1:${TEST_APP_PORT}`;
+  const url = `http://127.0.0.1:${env.PORT}`;
   // Up to 60 s: on a busy machine (a full suite beside other work) the first answer can take 20 s.
   for (let i = 0; i < 300; i++) {
     try {
       const res = await fetch(`${url}/sign-in`);
-      if (res.ok) return { url, stop: () => child.kill("SIGTERM") };
+      if (res.ok) return { url, stop: () => stopChild(child), output: () => output };
     } catch {
       /* not up yet */
     }
@@ -46,6 +51,16 @@ export async function startAppServer(): Promise<{ url: string; stop: () => void 
   }
   child.kill("SIGTERM");
   throw new Error(`the app server did not start on ${url}:\n${output}`);
+}
+
+/** SIGTERM, and the promise of its exit (so a server started next can have the port). */
+function stopChild(child: ChildProcess): Promise<void> {
+  if (child.exitCode !== null || child.signalCode !== null) return Promise.resolve();
+  return new Promise((resolve) => {
+    child.once("exit", () => resolve());
+    child.kill("SIGTERM");
+    setTimeout(() => child.kill("SIGKILL"), 5000).unref();
+  });
 }
 
 export type AppServer = Awaited<ReturnType<typeof startAppServer>>;
@@ -60,7 +75,7 @@ export async function startBrowserApp(): Promise<{ server: AppServer; browser: B
 /** Their end in afterAll (either may be missing when beforeAll failed). */
 export async function stopBrowserApp(server: AppServer | undefined, browser: Browser | undefined) {
   await browser?.close();
-  server?.stop();
+  await server?.stop();
 }
 
 /** Fills and submits the sign-in form on the current page. */

@@ -10,7 +10,7 @@ export const testEnv: Record<string, string> = {
   DATABASE_URL: process.env.TEST_DATABASE_URL ?? localDatabaseUrl("ratebook_test"),
   SMTP_URL: `smtp://127.0.0.1:${TEST_SMTP_PORT}`,
   MAIL_SINK_URL: `http://127.0.0.1:${TEST_MAIL_HTTP_PORT}`,
-  SESSION_SECRET: "test-only-session-secret",
+  SESSION_SECRET: "test-only-session-secret-at-least-32-characters",
   BCRYPT_COST: "4",
   APP_URL: `http://127.0.0.1:${TEST_APP_PORT}`,
 };

@@ -17,7 +17,7 @@ export const BENCH_BASE = `http://127.0.0.1:${BENCH_PORT}`;
 export async function openBenchDatabase(name = "ratebook_bench") {
   delete process.env.DATABASE_URL;
   process.env.DATABASE_URL = await ensurePostgres(name, { reset: true });
-  process.env.SESSION_SECRET ??= "bench-only-session-secret";
+  process.env.SESSION_SECRET ??= "bench-only-session-secret-of-32-characters-or-more";
   process.env.BCRYPT_COST ??= "4";
   const { getSequelize, closeSequelize } = await import("../../../app/.server/db/sequelize.server");
   const { createMigrator } = await import("../../../db/migrator");
@@ -58,10 +58,10 @@ async function waitForPort(url: string, child: ChildProcess, what: string) {
 }
 
 /** Starts the production server exactly as `npm run serve` does, on the bench port. */
-export async function startAppServer(extraEnv: Record<string, string> = {}, argv = [path.join(projectRoot, "node_modules", "@react-router", "serve", "bin.js"), "./build/server/index.js"]) {
+export async function startAppServer(extraEnv: Record<string, string> = {}, argv = [path.join(projectRoot, "node_modules", "tsx", "dist", "cli.mjs"), "scripts/serve.ts"]) {
   const child = spawn(process.execPath, argv, {
     cwd: projectRoot,
-    env: { ...process.env, PORT: String(BENCH_PORT), HOST: "127.0.0.1", SESSION_COOKIE_SECURE: "0", NODE_ENV: "production", ...extraEnv },
+    env: { ...process.env, PORT: String(BENCH_PORT), HOST: "127.0.0.1", SESSION_COOKIE_SECURE: "0", NODE_ENV: "production", APP_URL: BENCH_BASE, LOG_LEVEL: "warn", ...extraEnv },
     stdio: ["ignore", "ignore", "inherit"],
   });
   await waitForPort(`${BENCH_BASE}/sign-in`, child, "the app server");
