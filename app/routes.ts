@@ -68,6 +68,9 @@ export default [
     route("export.csv", "routes/sessions/export-csv.ts"),
   ]),
 
+  // The load balancer's probe: no sign-in, no personal data.
+  route("healthz", "routes/healthz.ts"),
+
   // JSON API (resource routes).
   ...prefix("api", [
     route("me", "routes/api/me.ts"),

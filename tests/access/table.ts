@@ -115,6 +115,9 @@ export const ACCESS: Record<string, RouteAccess> = {
   "routes/api/submission.ts": { url: "/api/submissions/{submission}", get: [401, 200, 200, 200, 200, 403], post: API_NO_METHOD },
   "routes/api/submission-original.ts": { url: "/api/submissions/{submission}/original", get: [401, 200, 200, 200, 200, 403], post: API_NO_METHOD },
 
+  // The load balancer's probe: anyone, no personal data (JSON; no action).
+  "routes/healthz.ts": { url: "/healthz", get: [200, 200, 200, 200, 200, 200], post: API_NO_METHOD },
+
   "routes/not-found.tsx": { url: "/no-such-page", get: [404, 404, 404, 404, 404, 404], post: NO_ACTION_PAGE, screens: ["signedOut", "student"] },
 };
 

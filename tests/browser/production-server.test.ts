@@ -116,6 +116,23 @@ describe("behind an HTTPS proxy", () => {
   });
 });
 
+describe("the health probe", () => {
+  test("503 with the same shape when the database does not answer", async () => {
+    const ok = await fetch(`${server.url}/healthz`);
+    expect(ok.status).toBe(200);
+    expect(await ok.json()).toMatchObject({ ok: true, database: "up", queue: { waiting: expect.any(Number), failed: expect.any(Number) } });
+    // a second server whose database is a closed port
+    const down = await startAppServer({ PORT: String(TEST_APP_PORT + 1), APP_URL: `http://127.0.0.1:${TEST_APP_PORT + 1}`, DATABASE_URL: "postgres://ratebook@127.0.0.1:1/nowhere" });
+    try {
+      const res = await fetch(`${down.url}/healthz`);
+      expect(res.status).toBe(503);
+      expect(await res.json()).toEqual({ ok: false, database: "down", queue: { waiting: null, failed: null } });
+    } finally {
+      await down.stop();
+    }
+  }, 120_000);
+});
+
 describe("session secrets", () => {
   const serve = (env: Record<string, string | undefined>) =>
     spawnSync(path.join(root, "node_modules", ".bin", "tsx"), ["scripts/serve.ts"], {
