@@ -21,18 +21,9 @@ export class SignInError extends Error {
 
 export const GENERIC_FAILURE = "That e-mail and password do not match an account.";
 
-export function normaliseEmail(raw: unknown) {
-  return String(raw ?? "").trim().toLowerCase();
-}
-
-const EMAIL_PATTERN = /^[^\s@]+@[^\s@]+\.[^\s@]+$/;
-
-/** The message for an e-mail field, or null when it will do; `whose` names the owner ("your"). */
-export function emailProblem(email: string, whose = "your"): string | null {
-  if (!email) return `Enter ${whose} e-mail address.`;
-  if (!EMAIL_PATTERN.test(email) || email.length > 254) return "That does not look like an e-mail address.";
-  return null;
-}
+// The one address check, shared with the send-mail job (app/lib/email-address.ts).
+export { emailProblem, normaliseEmail } from "~/lib/email-address";
+import { emailProblem, normaliseEmail } from "~/lib/email-address";
 
 export const authenticator = new Authenticator<SignedInUser>();
 

@@ -5,8 +5,8 @@ import { sequelize, User, Course, CourseMembership, type CourseRole, type Role, 
 import { issueToken, checkToken, consumeToken, tokenMessage } from "./tokens.server";
 import { checkNewPassword, hashPassword, verifyPassword } from "./passwords.server";
 import { recordAudit } from "./audit.server";
-import { sendMail } from "./mail.server";
-import { config } from "./config.server";
+import { queueMail } from "./mail/outbox.server";
+import { enqueue } from "./jobs/queue.server";
 import { emailProblem, normaliseEmail } from "./auth.server";
 import { endSessionsOf } from "./session.server";
 import { liftSignInLock } from "./throttle.server";
@@ -35,7 +35,7 @@ export async function inviteToCourse(actor: User, courseId: number, input: Invit
   if (!course) errors.form = "That course no longer exists.";
   if (Object.keys(errors).length) return { ok: false, errors };
 
-  let token: string | null = null;
+  let invited = false;
   await sequelize.transaction(async (transaction) => {
     let user = await User.findOne({ where: { email }, transaction });
     if (!user) {
@@ -51,20 +51,15 @@ export async function inviteToCourse(actor: User, courseId: number, input: Invit
       const m = await CourseMembership.create({ courseId, userId: user.id, role }, { transaction });
       await recordAudit({ actorId: actor.id, action: "membership.added", entityType: "course_membership", entityId: m.id, after: { courseId, userId: user.id, role } }, transaction);
     }
-    if (!user.passwordHash) token = await issueToken(user.id, "invitation", actor.id, transaction);
+    if (!user.passwordHash) {
+      const token = await issueToken(user.id, "invitation", actor.id, transaction);
+      // The mail is a job in this transaction: sent by a worker, never inside the request.
+      await queueMail(email, "invitation", { name: displayName, inviter: actor.displayName, courseCode: course!.code, courseTitle: course!.title, role, token }, { transaction });
+      invited = true;
+    }
   });
 
-  if (token) {
-    await sendMail({
-      to: email,
-      subject: `You are invited to ${course!.code} on Ratebook`,
-      text:
-        `Hello ${displayName},\n\n${actor.displayName} has added you to ${course!.code} ${course!.title} as ${role}.\n` +
-        `Choose your password here (the link works once and for 7 days):\n\n${config.appUrl}/invitation/${token}\n\n` +
-        `If you did not expect this, ignore this message.\n`,
-    });
-  }
-  return { ok: true, value: { invited: token !== null } };
+  return { ok: true, value: { invited } };
 }
 
 /**
@@ -104,24 +99,30 @@ export function acceptInvitation(rawToken: string, input: { password: unknown; c
   });
 }
 
-/** Always reports success to the caller, so the form cannot be used to find accounts. */
+/**
+ * Asks for a reset link. The answer and the work are the same whether or not the address has
+ * an account: one `password-reset` job is added either way, and the worker looks the account
+ * up, makes the link and queues the mail (tasks/password-reset.server.ts). So neither the
+ * answer nor its time tells whether an account exists, and a mail outage cannot break the form.
+ * The caller limits how often this may be asked (throttle.server.ts).
+ */
 export async function requestPasswordReset(rawEmail: unknown): Promise<Outcome> {
   const email = normaliseEmail(rawEmail);
   const badEmail = emailProblem(email);
   if (badEmail) return { ok: false, errors: { email: badEmail } };
-  const user = await User.findOne({ where: { email } });
-  if (user) {
-    const token = await issueToken(user.id, "password-reset", null);
-    await sendMail({
-      to: email,
-      subject: "Reset your Ratebook password",
-      text:
-        `Hello ${user.displayName},\n\nSomeone asked to reset the password of this Ratebook account.\n` +
-        `Choose a new password here (the link works once and for one hour):\n\n${config.appUrl}/password/reset/${token}\n\n` +
-        `If it was not you, ignore this message: your password stays as it is.\n`,
-    });
-  }
+  await enqueue("password-reset", { email });
   return { ok: true, value: undefined };
+}
+
+/** The worker's half of a reset request: a link and its mail for an account, nothing otherwise. */
+export async function sendPasswordResetLink(email: string): Promise<boolean> {
+  return sequelize.transaction(async (transaction) => {
+    const user = await User.findOne({ where: { email }, transaction });
+    if (!user) return false;
+    const token = await issueToken(user.id, "password-reset", null, transaction);
+    await queueMail(user.email, "password-reset", { name: user.displayName, token }, { transaction });
+    return true;
+  });
 }
 
 export function resetPassword(rawToken: string, input: { password: unknown; confirm: unknown }): Promise<Outcome<User>> {

@@ -2,6 +2,7 @@
 import { RouterContextProvider } from "react-router";
 import { expect } from "vitest";
 import { action as signInAction } from "~/routes/auth/sign-in";
+import { runJobsUntilIdle } from "~/.server/jobs/worker.server";
 
 const BASE = "http://127.0.0.1:3100";
 
@@ -72,8 +73,12 @@ export function demoCookie(who: "admin" | "instructor" | "demonstrator" | "stude
   return signInAs(`${who}@demo.ratebook.invalid`, `demo-${who}-pass`);
 }
 
-/** Waits (up to 2.5 s) until the mail sink holds `count` messages to `email`; returns them all. */
+/**
+ * Runs the job queue (every mail goes through it), then waits (up to 2.5 s) until the mail sink
+ * holds `count` messages to `email`; returns them all.
+ */
 export async function waitForMail(email: string, count = 1): Promise<SinkMessage[]> {
+  await runJobsUntilIdle();
   let mails = await mailTo(email);
   for (let i = 0; i < 50 && mails.length < count; i++) {
     await new Promise((r) => setTimeout(r, 50));

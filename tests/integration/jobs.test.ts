@@ -33,9 +33,27 @@ describe("job queue", () => {
     expect(await pendingJobs()).toEqual([]);
   });
 
-  test("a malformed payload is dropped with an error instead of retried", async () => {
+  test("a malformed payload fails for good at once: not retried, and kept as a failed job (never vanishes)", async () => {
+    await runJobsUntilIdle();
     await sequelize.query("select graphile_worker.add_job('send-mail', '{\"to\": \"not an address\"}'::json)");
     await runJobsUntilIdle();
-    expect(await pendingJobs()).toEqual([]);
+    const failed = (await pendingJobs()).filter((j) => j.task === "send-mail");
+    expect(failed).toHaveLength(1);
+    expect(failed[0].attempts).toBe(1);
+    expect(failed[0].lastError).toMatch(/permanent failure: payload is malformed/);
+    const [rows] = await sequelize.query("select attempts, max_attempts from graphile_worker.jobs where id = :id", { replacements: { id: failed[0].id } });
+    expect(rows).toEqual([{ attempts: 1, max_attempts: 1 }]);
+    await sequelize.query("delete from graphile_worker._private_jobs where id = :id", { replacements: { id: failed[0].id } });
+  });
+
+  test("an address the forms refuse is not sent by the job either, and the job shows as failed", async () => {
+    await runJobsUntilIdle();
+    // Queued as raw job (as an old release or a bug might have): the job checks with the forms' function.
+    await enqueue("send-mail", { to: "josé@uni.example", subject: "x", text: "y" });
+    await runJobsUntilIdle();
+    const failed = (await pendingJobs()).filter((j) => j.task === "send-mail");
+    expect(failed).toHaveLength(1);
+    expect(failed[0].lastError).toMatch(/permanent failure: not sent to "josé@uni.example": Use the address in plain characters/);
+    await sequelize.query("delete from graphile_worker._private_jobs where id = :id", { replacements: { id: failed[0].id } });
   });
 });

@@ -77,6 +77,27 @@ describe("roster import", () => {
     expect(mail.text).toMatch(/\/invitation\/[A-Za-z0-9_-]+/);
   });
 
+  test("the form and the mail job share one address check: what is queued is sent, what the job would refuse is refused in the preview", async () => {
+    // "~" is a valid address character the job's old check refused (queued, then dropped);
+    // a one-letter top-level domain and accented letters the form used to accept.
+    const rows = [
+      "Student ID,Name,E-mail",
+      "R4001,Tilde Person (invented),tilde~person@roster.ratebook.invalid",
+      "R4002,Short Top (invented),short.top@roster.c",
+      "R4003,Accent Person (invented),andré@roster.ratebook.invalid",
+    ].join("\n");
+    const preview = payloadOf(await call(rosterAction, upload("mixed.csv", rows), params()));
+    expect(preview.rows.map((r: { status: string }) => r.status)).toEqual(["new", "bad", "bad"]);
+    expect(preview.rows[1].notes).toContain("the e-mail short.top@roster.c is malformed");
+    expect(preview.rows[2].notes.join(" ")).toMatch(/andré@roster\.ratebook\.invalid is malformed \(Use the address in plain characters/);
+    const good = [rows.split("\n")[0], rows.split("\n")[1]].join("\n");
+    const saved = payloadOf(await confirm(payloadOf(await call(rosterAction, upload("good.csv", good), params())).payload));
+    expect(saved.message).toContain("1 added");
+    const [mail] = await waitForMail("tilde~person@roster.ratebook.invalid");
+    expect(mail.subject).toBe("You are invited to KIN-DEMO on Ratebook");
+    expect((await pendingJobs()).filter((j) => j.task === "send-mail")).toEqual([]);
+  });
+
   test("a re-import shows unchanged and updated rows, and updates them (.xlsx)", async () => {
     const wb = new ExcelJS.Workbook();
     const ws = wb.addWorksheet("Roster");

@@ -9,6 +9,23 @@ export interface TaskDefinition {
   run: Task;
 }
 
+/** A job that can never succeed (bad payload, unsendable address): failed at once, not retried. */
+export class PermanentJobError extends Error {}
+
+export const PERMANENT_FAILURE = "permanent failure";
+
+/**
+ * Ends the job as failed for good: its attempts are used up, so graphile-worker keeps it (with
+ * the message as `last_error`) instead of retrying or deleting it. Jobs never vanish silently.
+ */
+async function failForGood(helpers: JobHelpers, message: string): Promise<never> {
+  helpers.logger.error(`job ${helpers.job.id} (${helpers.job.task_identifier}) failed for good: ${message}`);
+  await helpers.withPgClient((client) =>
+    client.query("update graphile_worker._private_jobs set max_attempts = greatest(attempts, 1) where id = $1", [helpers.job.id]),
+  );
+  throw new Error(`${PERMANENT_FAILURE}: ${message}`);
+}
+
 export function defineTask<T extends TaskName>(
   name: T,
   schema: z.ZodType<TaskPayloads[T]>,
@@ -18,12 +35,13 @@ export function defineTask<T extends TaskName>(
     name,
     run: async (raw, helpers) => {
       const parsed = schema.safeParse(raw);
-      // A malformed payload will never succeed: fail loudly once rather than retry 25 times.
-      if (!parsed.success) {
-        helpers.logger.error(`payload of job ${helpers.job.id} is malformed: ${parsed.error.message}; dropped`);
-        return;
+      if (!parsed.success) return failForGood(helpers, `payload is malformed: ${parsed.error.issues.map((i) => `${i.path.join(".") || "(payload)"} ${i.message}`).join("; ")}`);
+      try {
+        await work(parsed.data, helpers);
+      } catch (error) {
+        if (error instanceof PermanentJobError) return failForGood(helpers, error.message);
+        throw error;
       }
-      await work(parsed.data, helpers);
     },
   };
 }

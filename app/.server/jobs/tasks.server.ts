@@ -4,7 +4,8 @@ import type { TaskList } from "graphile-worker";
 import type { TaskDefinition } from "./define-task.server";
 import { sendMailTask } from "./tasks/send-mail.server";
 import { markSubmissionTask } from "./tasks/mark-submission.server";
+import { passwordResetTask } from "./tasks/password-reset.server";
 
-const definitions: TaskDefinition[] = [sendMailTask, markSubmissionTask];
+const definitions: TaskDefinition[] = [sendMailTask, markSubmissionTask, passwordResetTask];
 
 export const taskList: TaskList = Object.fromEntries(definitions.map((d) => [d.name, d.run]));

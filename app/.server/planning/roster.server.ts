@@ -6,11 +6,10 @@ import ExcelJS from "exceljs";
 import { Op } from "sequelize";
 import { CourseMembership, User, Course, sequelize } from "../db/models.server";
 import { Group, GroupMember } from "../db/groups.server";
-import { emailProblem, normaliseEmail } from "../auth.server";
+import { emailProblem, normaliseEmail, NOT_AN_ADDRESS } from "~/lib/email-address";
 import { issueToken } from "../tokens.server";
 import { recordAudit } from "../audit.server";
-import { enqueue } from "../jobs/queue.server";
-import { config } from "../config.server";
+import { queueMail } from "../mail/outbox.server";
 
 export const ROSTER_MAX_BYTES = 2 * 1024 * 1024;
 
@@ -133,7 +132,7 @@ export async function previewRoster(courseId: number, rows: RosterRow[]): Promis
     if (!r.name) notes.push("the name is empty");
     else if (r.name.length > 120) notes.push("the name is longer than 120 characters");
     const badEmail = emailProblem(r.email, "the student's");
-    if (badEmail) notes.push(r.email ? `the e-mail ${r.email} is malformed` : "the e-mail is missing");
+    if (badEmail) notes.push(r.email ? `the e-mail ${r.email} is malformed${badEmail === NOT_AN_ADDRESS ? "" : ` (${badEmail})`}` : "the e-mail is missing");
     if (r.group.length > 80) notes.push("the group name is longer than 80 characters");
     if (r.studentNumber && seenNumber.has(r.studentNumber)) notes.push(`student ID ${r.studentNumber} is also on row ${seenNumber.get(r.studentNumber)}`);
     if (r.email && seenEmail.has(r.email)) notes.push(`e-mail ${r.email} is also on row ${seenEmail.get(r.email)}`);
@@ -203,18 +202,7 @@ export async function importRoster(actor: User, courseId: number, rows: RosterRo
       else summary.updated++;
       if (!user.passwordHash && created) {
         const token = await issueToken(user.id, "invitation", actor.id, transaction);
-        await enqueue(
-          "send-mail",
-          {
-            to: user.email,
-            subject: `You are invited to ${course!.code} on Ratebook`,
-            text:
-              `Hello ${r.name},\n\n${actor.displayName} has added you to ${course!.code} ${course!.title} as a student.\n` +
-              `Choose your password here (the link works once and for 7 days):\n\n${config.appUrl}/invitation/${token}\n\n` +
-              `If you did not expect this, ignore this message.\n`,
-          },
-          { transaction },
-        );
+        await queueMail(user.email, "invitation", { name: r.name, inviter: actor.displayName, courseCode: course!.code, courseTitle: course!.title, role: "a student", token }, { transaction });
         summary.invited++;
       }
     }

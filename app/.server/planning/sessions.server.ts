@@ -10,8 +10,7 @@ import { Group, GroupMember } from "../db/groups.server";
 import { Course, User, sequelize, type CourseRole } from "../db/models.server";
 import { requireCourseRole } from "../guards.server";
 import { recordAudit } from "../audit.server";
-import { enqueue } from "../jobs/queue.server";
-import { config } from "../config.server";
+import { queueMail } from "../mail/outbox.server";
 import { benchProblems, predictBench, proposeBenches, sessionProblems, type BenchFeed, type Problem, type ReactionForDesign, type SessionForDesign } from "~/lib/planning/feed-design";
 
 const num = (msg: string) => z.number({ error: msg });
@@ -332,16 +331,18 @@ export async function notifyGroups(actor: User, session: LabSession) {
   await sequelize.transaction(async (transaction) => {
     for (const m of members) {
       const bench = assigned.find((b) => b.groupId === m.groupId)!;
-      const deadline = session.deadline ? `Upload your readings by ${session.deadline.toISOString().slice(0, 16).replace("T", " ")} UTC.\n` : "";
-      await enqueue(
-        "send-mail",
+      await queueMail(
+        m.user!.email,
+        "bench-notice",
         {
-          to: m.user!.email,
-          subject: `Your bench for ${session.title} on ${session.date}: bench ${bench.label}`,
-          text:
-            `Hello ${m.user!.displayName},\n\nYour group ${m.group!.name} works at bench ${bench.label} in ${session.title} on ${session.date}.\n` +
-            `Your bench sheet (feed, temperature, volumes to mix, sampling plan and hazard cautions):\n\n` +
-            `${config.appUrl}/sessions/${session.id}/benches/${bench.id}/sheet\n\n${deadline}`,
+          name: m.user!.displayName,
+          group: m.group!.name,
+          practical: session.title,
+          date: session.date,
+          bench: bench.label,
+          sessionId: session.id,
+          benchId: bench.id,
+          deadlineUtc: session.deadline ? session.deadline.toISOString().slice(0, 16).replace("T", " ") : null,
         },
         { transaction },
       );

@@ -9,8 +9,7 @@ import { Group, GroupMember } from "../db/groups.server";
 import { LabSession } from "../db/lab-sessions.server";
 import { Submission, SubmissionComment, effectiveMark, type Exclusion } from "../db/submissions.server";
 import { recordAudit } from "../audit.server";
-import { enqueue } from "../jobs/queue.server";
-import { config } from "../config.server";
+import { queueMail } from "../mail/outbox.server";
 import { benchesOfSession } from "./context.server";
 import { computeMark, markColumns } from "./marking.server";
 
@@ -154,15 +153,7 @@ export async function releaseMarks(actor: User, session: LabSession, showReferen
       for (const m of g.members ?? []) {
         const user = (m as unknown as { user?: User }).user;
         if (!user) continue;
-        await enqueue(
-          "send-mail",
-          {
-            to: user.email,
-            subject: `Marks released: ${session.title}`,
-            text: `Hello ${user.displayName},\n\nThe marks and feedback for "${session.title}" (group ${g.name}) are ready.\nRead them at ${config.appUrl}/groups/${g.id}/submissions\n\nRatebook`,
-          },
-          { transaction },
-        );
+        await queueMail(user.email, "marks-released", { name: user.displayName, practical: session.title, group: g.name, groupId: g.id }, { transaction });
         mails++;
       }
     }
