@@ -19,6 +19,10 @@ import path from "node:path";
 import pg from "pg";
 import { BENCH_BASE, ensureBuild, machineNote, openBenchDatabase, startAppServer } from "./lib/http-load";
 import { clusterControl, dropDatabase, projectRoot } from "../lib/postgres";
+import { readingsFor as readingsOf, seedUploadGroups, type Seeded } from "./lib/upload-groups";
+
+const seed = () => seedUploadGroups(GROUPS);
+const readingsFor = (g: Seeded["groups"][number], seedValue: number) => readingsOf(g, seedValue, ROWS);
 
 const DB_NAME = "ratebook_bench";
 const GROUPS = Number(process.env.BENCH_GROUPS ?? 200);
@@ -35,60 +39,8 @@ const POLL_MS = 100;
 const TARGET_P95_MS = 1000;
 /** how fast the outage answer must come (common practice, no source: a client should not wait) */
 const TARGET_OUTAGE_ANSWER_MS = 1000;
-// Invented reference for the bench practical: A + B, first order in each.
-const REFERENCE = { kRef: 0.11, TrefC: 25, EaKJ: 50 };
-
 const sleep = (ms: number) => new Promise((r) => setTimeout(r, ms));
 const now = () => performance.timeOrigin + performance.now();
-
-interface Seeded {
-  sessionId: number;
-  groups: Array<{ groupId: number; token: string; CA0: number; CB0: number; temperatureC: number }>;
-}
-
-async function seed(): Promise<Seeded> {
-  const { Course, CourseMembership, User } = await import("../../app/.server/db/models.server");
-  const { Group, GroupMember } = await import("../../app/.server/db/groups.server");
-  const { ReactionSystem } = await import("../../app/.server/db/reaction-systems.server");
-  const { Bench, LabSession } = await import("../../app/.server/db/lab-sessions.server");
-  const { hashPassword } = await import("../../app/.server/passwords.server");
-  const { createApiToken } = await import("../../app/.server/api-tokens.server");
-  const course = await Course.create({ code: "BENCH-UP", title: "Upload benchmark course (invented)", term: "" });
-  const hash = await hashPassword("bench-only-password");
-  const system = await ReactionSystem.create({
-    courseId: course.id, name: "Invented A + B (bench)", speciesA: "ester X (invented)", speciesB: "hydroxide", coeffA: 1, coeffB: 1, orderA: 1, orderB: 1,
-    ...REFERENCE, measured: "concentration",
-  });
-  const session = await LabSession.create({
-    courseId: course.id, reactionSystemId: system.id, title: "Upload benchmark practical (invented)", date: new Date().toISOString().slice(0, 10),
-    slotMinutes: 180, setupMinutes: 30, reactorVolumeMl: 250, stockAMolL: 0.1, stockBMolL: 0.1, samplingIntervalS: 60,
-    rubric: { fullWithinPct: 10, partialWithinPct: 25, partialFraction: 0.5, analysisWeight: 0.4, experimentWeight: 0.6, latePenaltyPct: 10 },
-    deadline: null, status: "planned",
-  });
-  const groups: Seeded["groups"] = [];
-  for (let i = 0; i < GROUPS; i++) {
-    const group = await Group.create({ courseId: course.id, name: `Bench group ${i + 1}` });
-    const student = await User.create({ email: `bench-s${i + 1}@bench.ratebook.invalid`, displayName: `Bench student ${i + 1}`, role: "member", passwordHash: hash });
-    await CourseMembership.create({ courseId: course.id, userId: student.id, role: "student" });
-    await GroupMember.create({ groupId: group.id, courseId: course.id, userId: student.id });
-    // every bench its own (feed, temperature): 5 temperatures x GROUPS/5 feeds of B
-    const temperatureC = 20 + 5 * (i % 5);
-    const CB0 = Number((0.025 + 0.0005 * Math.floor(i / 5)).toFixed(4));
-    await Bench.create({ sessionId: session.id, position: i + 1, label: String(i + 1), CA0: 0.02, CB0, temperatureC, groupId: group.id });
-    const { token } = await createApiToken(student, "upload benchmark", 1);
-    groups.push({ groupId: group.id, token, CA0: 0.02, CB0, temperatureC });
-  }
-  return { sessionId: session.id, groups };
-}
-
-/** A group's readings: the engine's closed form at its bench, seeded noise; and its own k. */
-async function readingsFor(g: Seeded["groups"][number], seedValue: number) {
-  const { simulateRun, runCsv } = await import("../../app/lib/marking/simulate");
-  const { rateConstantAt } = await import("../../app/lib/kinetics/index");
-  const k = rateConstantAt(REFERENCE.kRef, REFERENCE.TrefC + 273.15, REFERENCE.EaKJ * 1000, g.temperatureC + 273.15);
-  const run = simulateRun({ reaction: { a: 1, b: 1, orderA: 1, orderB: 1 }, feed: { CA0: g.CA0, CB0: g.CB0 }, k, n: ROWS, seed: seedValue });
-  return { csv: runCsv(run), reportedK: String(run.reportedK), reportedMethod: run.reportedMethod };
-}
 
 type AnswerKind = "accepted" | "503 JSON" | "503 other" | "500" | "HTML page" | "other status" | "connection error" | "hang";
 interface Attempt {
