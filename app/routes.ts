@@ -51,6 +51,7 @@ export default [
       route("people", "routes/admin/people.tsx"),
       route("mail", "routes/admin/mail.tsx"),
       route("audit", "routes/admin/audit.tsx"),
+      route("jobs", "routes/admin/jobs.tsx"),
     ]),
   ]),
 

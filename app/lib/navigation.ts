@@ -17,6 +17,7 @@ export function navFor(role: Role, courseStaff: boolean): NavItem[] {
       { to: "/admin/people", label: "People" },
       { to: "/admin/mail", label: "Sent mail" },
       { to: "/admin/audit", label: "Audit log" },
+      { to: "/admin/jobs", label: "Job queue" },
     );
   }
   return items;

@@ -71,6 +71,8 @@ export const ACCESS: Record<string, RouteAccess> = {
   "routes/admin/people.tsx": { url: "/admin/people", get: ADMIN_ONLY, post: [302, 400, 403, 403, 403, 403], screens: ["admin"] },
   "routes/admin/mail.tsx": { url: "/admin/mail", get: ADMIN_ONLY, post: NO_ACTION_PAGE, screens: ["admin"] },
   "routes/admin/audit.tsx": { url: "/admin/audit", get: ADMIN_ONLY, post: NO_ACTION_PAGE, screens: ["admin"] },
+  // The job queue: admins read it and retry failed jobs (an empty form is 400).
+  "routes/admin/jobs.tsx": { url: "/admin/jobs", get: ADMIN_ONLY, post: [302, 400, 403, 403, 403, 403], screens: ["admin"] },
 
   "routes/api/me.ts": { url: "/api/me", get: [401, 200, 200, 200, 200, 200], post: API_NO_METHOD },
   "routes/api/fit.ts": { url: "/api/fit", get: API_NO_METHOD, post: [401, 400, 400, 400, 403, 403] },
