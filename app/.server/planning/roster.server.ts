@@ -3,6 +3,7 @@
 // everything in one transaction, with an invitation for each person new to Ratebook.
 import Papa from "papaparse";
 import ExcelJS from "exceljs";
+import { checkXlsxBounds, ROSTER_XLSX_LIMITS, XlsxBoundsError } from "~/.server/readings/xlsx-bounds.server";
 import { Op } from "sequelize";
 import { CourseMembership, User, Course, sequelize } from "../db/models.server";
 import { Group, GroupMember } from "../db/groups.server";
@@ -50,6 +51,12 @@ export async function readTable(fileName: string, bytes: Uint8Array): Promise<st
   if (bytes.length > ROSTER_MAX_BYTES) throw new RosterFileError(`${fileName} is ${(bytes.length / 1048576).toFixed(1)} MiB; a roster may be at most 2 MiB.`);
   const isZip = bytes[0] === 0x50 && bytes[1] === 0x4b;
   if (isZip) {
+    try {
+      await checkXlsxBounds(bytes, fileName, ROSTER_XLSX_LIMITS);
+    } catch (error) {
+      if (error instanceof XlsxBoundsError) throw new RosterFileError(error.message);
+      throw error;
+    }
     const wb = new ExcelJS.Workbook();
     try {
       await wb.xlsx.load(bytes.buffer.slice(bytes.byteOffset, bytes.byteOffset + bytes.byteLength) as ArrayBuffer);

@@ -3,6 +3,7 @@
 // or times of day turned into seconds elapsed since the first reading of that column.
 import ExcelJS from "exceljs";
 import { Refusal } from "~/lib/readings/csv";
+import { checkXlsxBounds, READINGS_XLSX_LIMITS, XlsxBoundsError } from "./xlsx-bounds.server";
 import { cellNumber, describeTable, numericColumns, type Cell, type RawTable } from "~/lib/readings/table";
 
 type Value = ExcelJS.CellValue;
@@ -25,6 +26,12 @@ function plain(v: Value): number | string | Date | null {
 }
 
 export async function readXlsx(bytes: Uint8Array, fileName = "the file"): Promise<RawTable> {
+  try {
+    await checkXlsxBounds(bytes, fileName, READINGS_XLSX_LIMITS);
+  } catch (error) {
+    if (error instanceof XlsxBoundsError) throw new Refusal(error.message);
+    throw error;
+  }
   const wb = new ExcelJS.Workbook();
   try {
     await wb.xlsx.load(bytes.buffer.slice(bytes.byteOffset, bytes.byteOffset + bytes.byteLength) as ArrayBuffer);
