@@ -2,22 +2,26 @@
 // with the fitted curve, CA(t) from the model, and the residuals. Server-rendered SVG (XYPlot).
 import type { RunPlots } from "~/lib/marking/plots";
 import { XYPlot } from "./xy-plot";
+import { sig } from "~/lib/format";
 
 export function RunPlotsView({ plots, timeUnit, valueLabel, concentrationUnit, measuresCA }: {
   /** measuresCA: the readings are concentrations of A already, so the CA(t) plot would repeat them */
   plots: RunPlots; timeUnit: string; valueLabel: string; concentrationUnit: string; measuresCA: boolean;
 }) {
   const t = `time / ${timeUnit}`;
+  // tooltips name each reading by its row in the uploaded file (the numbering of every flag and form)
+  const tips = (rows: number[] | undefined, pts: Array<[number, number]>, what: string) =>
+    rows ? pts.map((p, i) => `Row ${rows[i]} of the file: t = ${sig(p[0], 4)} ${timeUnit}, ${what} ${sig(p[1], 4)}`) : undefined;
   // XYPlot draws at the width it is shown at, so its text stays at 11 px or more on a phone
   // without a scrolling box (which keyboard users would have to reach).
   return (
     <div className="grid gap-x-6 lg:grid-cols-2 [&>*]:min-w-0">
-      <XYPlot title="Straight-line plot for this feed, with the fitted line" xLabel={t} yLabel={plots.line.yLabel} points={plots.line.points} curve={plots.line.curve} />
-      <XYPlot title="Readings against time with the fitted curve" xLabel={t} yLabel={valueLabel} points={plots.readings.points} curve={plots.readings.curve} />
+      <XYPlot title="Straight-line plot for this feed, with the fitted line" xLabel={t} yLabel={plots.line.yLabel} points={plots.line.points} curve={plots.line.curve} pointLabels={tips(plots.line.rows, plots.line.points, "y")} />
+      <XYPlot title="Readings against time with the fitted curve" xLabel={t} yLabel={valueLabel} points={plots.readings.points} curve={plots.readings.curve} pointLabels={tips(plots.readings.rows, plots.readings.points, "reading")} />
       {!measuresCA ? (
         <XYPlot title="Concentration of A from the fitted model" xLabel={t} yLabel={`CA / (${concentrationUnit})`} points={[]} curve={plots.concentration} />
       ) : null}
-      <XYPlot title="Residuals of the curve fit (reading minus model)" xLabel={t} yLabel={`residual, ${valueLabel}`} points={plots.residuals} zeroLine height={220} />
+      <XYPlot title="Residuals of the curve fit (reading minus model)" xLabel={t} yLabel={`residual, ${valueLabel}`} points={plots.residuals} zeroLine height={220} pointLabels={tips(plots.residualFileRows, plots.residuals, "residual")} />
     </div>
   );
 }

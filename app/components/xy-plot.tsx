@@ -22,6 +22,10 @@ export interface XYPlotProps {
   dashed?: Array<[number, number]>;
   /** what each mark stands for, in the caption (defaults: measured points, the fitted model) */
   legend?: { points?: string; curve?: string; crosses?: string; dashed?: string };
+  /** a tooltip per point (same order as `points`), e.g. the reading's row in the file */
+  pointLabels?: string[];
+  /** a tooltip per cross (same order as `crosses`) */
+  crossLabels?: string[];
 }
 
 const DEFAULT_WIDTH = 640;
@@ -55,7 +59,7 @@ function useWidth<T extends HTMLElement>() {
   return [ref, width] as const;
 }
 
-export function XYPlot({ title, xLabel, yLabel, points, curve = [], zeroLine = false, height = 300, crosses = [], dashed = [], legend = {} }: XYPlotProps) {
+export function XYPlot({ title, xLabel, yLabel, points, curve = [], zeroLine = false, height = 300, crosses = [], dashed = [], legend = {}, pointLabels, crossLabels }: XYPlotProps) {
   const [box, W] = useWidth<HTMLDivElement>();
   const all = [...points, ...curve, ...crosses, ...dashed].filter((p) => Number.isFinite(p[0]) && Number.isFinite(p[1]));
   const ys = all.map((p) => p[1]);
@@ -93,12 +97,12 @@ export function XYPlot({ title, xLabel, yLabel, points, curve = [], zeroLine = f
         {zeroLine ? <line x1={M.left} x2={W - M.right} y1={y(0)} y2={y(0)} stroke="#1d2125" strokeDasharray="4 3" /> : null}
         {dashedPath ? <path d={dashedPath} fill="none" stroke="#8a4b08" strokeWidth="2" strokeDasharray="7 4" data-series="dashed" /> : null}
         {path ? <path d={path} fill="none" stroke="#0b6170" strokeWidth="2" data-series="curve" /> : null}
-        {points.filter((p) => Number.isFinite(p[1])).map((p, i) => (
-          <circle key={i} cx={x(p[0])} cy={y(p[1])} r="3.5" fill="none" stroke="#1d2125" strokeWidth="1.5" data-series="points" />
-        ))}
-        {shownCrosses.map((p, i) => (
-          <path key={`c${i}`} d={`M${(x(p[0]) - 4.5).toFixed(1)},${(y(p[1]) - 4.5).toFixed(1)}l9,9m0,-9l-9,9`} fill="none" stroke="#a3261b" strokeWidth="2" data-series="crosses" />
-        ))}
+        {points.map((p, i) => Number.isFinite(p[1]) ? (
+          <circle key={i} cx={x(p[0])} cy={y(p[1])} r="3.5" fill="none" stroke="#1d2125" strokeWidth="1.5" data-series="points">{pointLabels?.[i] ? <title>{pointLabels[i]}</title> : null}</circle>
+        ) : null)}
+        {crosses.map((p, i) => Number.isFinite(p[0]) && Number.isFinite(p[1]) ? (
+          <path key={`c${i}`} d={`M${(x(p[0]) - 4.5).toFixed(1)},${(y(p[1]) - 4.5).toFixed(1)}l9,9m0,-9l-9,9`} fill="none" stroke="#a3261b" strokeWidth="2" data-series="crosses">{crossLabels?.[i] ? <title>{crossLabels[i]}</title> : null}</path>
+        ) : null)}
         <text x={(M.left + W - M.right) / 2} y={height - 8} textAnchor="middle" fontSize={LABEL_PX} fontWeight="bold">{xLabel}</text>
         <text transform={`translate(${LABEL_PX + 2} ${(M.top + height - M.bottom) / 2}) rotate(-90)`} textAnchor="middle" fontSize={LABEL_PX} fontWeight="bold">{yLabel}</text>
       </svg>

@@ -189,7 +189,7 @@ describe("course workbook", () => {
     const ws = (await open(await courseBook())).getWorksheet("P2 Practical EXP-T")!;
     const u = "L/(mol·s)";
     expect(headers(ws, 27)).toEqual([
-      "Bench", "Group", "Members", "CA0 (mol/L)", "CB0 (mol/L)", "CB0/CA0", "T (°C)", "Status", "Version", "Submitted at (UTC)", "Late",
+      "Bench", "Group", "Members", "CA0 (mol/L)", "CB0 (mol/L)", "M = CB0/(ν·CA0)", "T (°C)", "Status", "Version", "Submitted at (UTC)", "Late",
       `Marking k (${u})`, `k 95 % CI low (${u})`, `k 95 % CI high (${u})`, `k standard error (${u})`, `Reference k at T (${u})`,
       "Deviation from reference (%)", "Experiment part (%)", "Analysis part (%)", "Late penalty (%)", "Overridden", "Override reason", "Mark (%)",
       "Flags", "Review", "Readings sheet", "Original file",

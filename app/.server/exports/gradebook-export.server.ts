@@ -11,6 +11,7 @@
 // Figures come from the gradebook services (the same numbers as the gradebook pages and the API);
 // the sheets are built with the building blocks in workbook.server.ts (numbers as numbers, no
 // formulas, frozen headers, widths). Staff only: the routes check the caller first.
+import { FEED_RATIO_HEADER } from "~/lib/planning/feed-ratio";
 import { QueryTypes } from "sequelize";
 import { getSequelize } from "../db/sequelize.server";
 import { whileDatabaseUp } from "../db/unavailable.server";
@@ -186,7 +187,7 @@ function fitColumns(book: SessionGradebook, readingsSheets: Map<number, string>,
     { header: "Members", kind: "text", value: (r) => r.members.join(", "), width: 30 },
     { header: "CA0", unit: "mol/L", kind: "number", value: (r) => r.CA0 },
     { header: "CB0", unit: "mol/L", kind: "number", value: (r) => r.CB0 },
-    { header: "CB0/CA0", kind: "number", numFmt: "0.000", value: (r) => r.feedRatio, width: 10 },
+    { header: FEED_RATIO_HEADER, kind: "number", numFmt: "0.000", value: (r) => r.feedRatio, width: 10 },
     { header: "T", unit: "°C", kind: "number", value: (r) => r.temperatureC, width: 8 },
     { header: "Status", kind: "text", value: (r) => (r.status ? STATUS_TEXT[r.status] ?? r.status : "nothing uploaded"), width: 16 },
     { header: "Version", kind: "integer", value: (r) => r.version },

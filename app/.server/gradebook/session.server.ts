@@ -2,6 +2,7 @@
 // that counts, as in the review queue). One SQL statement: the page, the API, the exports and the
 // class results all read it, and the course gradebook has to answer hundreds of times a second,
 // so it reads only the few fields it shows out of the JSONB columns.
+import { feedRatio, nuOf } from "~/lib/planning/feed-ratio";
 import { QueryTypes } from "sequelize";
 import { getSequelize } from "../db/sequelize.server";
 import { LabSession } from "../db/lab-sessions.server";
@@ -97,6 +98,7 @@ export async function buildSessionGradebook(sessionId: number): Promise<SessionG
   const system = session.reactionSystem!;
   const course = (session as unknown as { course: Course }).course;
   const raw = await getSequelize().query<Record<string, any>>(ROWS, { bind: [sessionId], type: QueryTypes.SELECT });
+  const nu = nuOf(system);
   const kRefAt = (T: number) => rateConstantAt(system.kRef, celsius(system.TrefC), system.EaKJ * 1000, celsius(T));
   const rows = raw.map((r): SessionGradebookRow => ({
     groupId: r.group_id,
@@ -106,7 +108,7 @@ export async function buildSessionGradebook(sessionId: number): Promise<SessionG
     bench: r.bench,
     CA0: r.ca0,
     CB0: r.cb0,
-    feedRatio: r.cb0 / r.ca0,
+    feedRatio: feedRatio(r.ca0, r.cb0, nu),
     temperatureC: r.temperature_c,
     submissionId: r.submission_id ?? null,
     version: r.version ?? null,

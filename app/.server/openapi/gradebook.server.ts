@@ -19,7 +19,7 @@ export const gradebookPart: ApiPart = {
         bench: { type: "string", description: "the bench's label" },
         CA0: { ...num, description: "mol/L in the reactor" },
         CB0: { ...num, description: "mol/L in the reactor" },
-        feedRatio: { ...num, description: "CB0 / CA0" },
+        feedRatio: { ...num, description: "feed ratio M = CB0/(ν·CA0), ν = b/a (1 is the stoichiometric feed)" },
         temperatureC: num,
         submissionId: { type: ["integer", "null"], description: "the group's latest version (the one that counts); null: nothing uploaded" },
         version: { type: ["integer", "null"] },

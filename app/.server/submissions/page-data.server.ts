@@ -10,9 +10,16 @@ export function fittedPoints(s: Submission): Array<[number, number]> {
   return s.readings.points.filter((_, i) => !excluded.has(s.readings!.rowNumbers[i]));
 }
 
+/** The file row of each reading the engine was given (same order as fittedPoints). */
+export function fittedRowNumbers(s: Submission): number[] {
+  if (!s.readings) return [];
+  const excluded = new Set((s.excluded ?? []).map((e) => e.row));
+  return s.readings.rowNumbers.filter((r) => !excluded.has(r));
+}
+
 export function plotsOf(s: Submission, fit: FitResult | null): RunPlots | null {
   if (!fit || !s.readings) return null;
-  return runPlots(fit, fittedPoints(s));
+  return runPlots(fit, fittedPoints(s), fittedRowNumbers(s));
 }
 
 export function valueLabel(s: Submission): string {

@@ -12,6 +12,7 @@ import { recordAudit } from "../audit.server";
 import { queueMail } from "../mail/outbox.server";
 import { benchesOfSession } from "./context.server";
 import { computeMark, markColumns } from "./marking.server";
+import { flaggedWords, type QueueStop } from "~/lib/marking/queue";
 
 export type QueueTab = "to-check" | "flagged" | "checked";
 
@@ -36,6 +37,8 @@ export interface QueueRow {
   latest: {
     id: number; version: number; status: string; late: boolean; submittedAt: string; mark: number | null; overridden: boolean;
     flags: string[]; tab: QueueTab; markingError: string | null; k: number | null; deviationPct: number | null;
+    /** why it is flagged, a word per reason (empty when it is not) */
+    words: string[];
   } | null;
   versions: number;
 }
@@ -68,11 +71,36 @@ export async function reviewQueue(session: LabSession): Promise<{ rows: QueueRow
             id: s.id, version: s.version, status: s.status, late: s.late, submittedAt: s.submittedAt.toISOString(),
             mark: effectiveMark(s), overridden: s.overrideMark !== null, flags: (s.flags ?? []).map((f) => f.code), tab: tab!,
             markingError: s.markingError, k: s.checks?.kMarking ?? null, deviationPct: s.checks?.experiment.deviationPct ?? null,
+            words: flaggedWords(s.status, (s.flags ?? []).map((f) => f.code)),
           }
         : null,
     };
   });
   return { rows, counts };
+}
+
+/** The queue as stops in bench order (each group's latest version), for previous / next flagged. */
+export function queueStops(rows: readonly QueueRow[]): QueueStop[] {
+  return rows.filter((r) => r.latest).map((r) => ({ id: r.latest!.id, group: r.group, flagged: r.latest!.tab === "flagged" }));
+}
+
+/**
+ * "Mark all unflagged as checked": the versions of `ids` (what the reviewer was shown and counted)
+ * that are still the group's latest, marked, unflagged and not checked are marked checked, each
+ * audited, in one transaction. Returns how many changed (a version flagged meanwhile is left).
+ */
+export async function checkUnflagged(actor: User, session: LabSession, ids: readonly number[]): Promise<{ changed: number; skipped: number }> {
+  const { rows } = await reviewQueue(session);
+  const eligible = new Set(rows.filter((r) => r.latest && r.latest.tab === "to-check" && r.latest.status === "marked").map((r) => r.latest!.id));
+  const chosen = [...new Set(ids)].filter((id) => eligible.has(id));
+  await getSequelize().transaction(async (transaction) => {
+    if (!chosen.length) return;
+    await Submission.update({ reviewState: "checked", reviewedById: actor.id }, { where: { id: { [Op.in]: chosen }, sessionId: session.id, reviewState: "to-check" }, transaction });
+    for (const id of chosen) {
+      await recordAudit({ actorId: actor.id, action: "submission.checked", entityType: "submission", entityId: id, after: { bulk: true } }, transaction);
+    }
+  });
+  return { changed: chosen.length, skipped: new Set(ids).size - chosen.length };
 }
 
 /** Leaves one reading out (by its row in the file), with a reason; the mark is recomputed at once. */

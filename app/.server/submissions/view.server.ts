@@ -5,6 +5,7 @@
 import type { FitResult } from "~/lib/kinetics";
 import { Submission, effectiveMark } from "../db/submissions.server";
 import type { Viewer } from "./context.server";
+import { ownLine, type OwnLine } from "~/lib/marking/estimators";
 
 /** Flags that are computed against the reference value: kept from students. */
 const REFERENCE_FLAGS = new Set(["unit-slip"]);
@@ -50,9 +51,16 @@ export interface SubmissionView {
   markingRuns?: number;
   /** after release, when the instructor shows it */
   kRefAtT?: number;
+  /** the group's own straight line: the k the analysis check compares the reported k with */
+  ownLine: OwnLine | null;
 }
 
 export function submissionView(s: Submission, viewer: Viewer, release: { releasedAt: Date | null; showsReference: boolean }, originalName: string | null): SubmissionView {
+  const withLine = (v: SubmissionView): SubmissionView => ({ ...v, ownLine: v.fit ? ownLine(v.fit, s.checks?.kLine) : null });
+  return withLine(viewOf(s, viewer, release, originalName));
+}
+
+function viewOf(s: Submission, viewer: Viewer, release: { releasedAt: Date | null; showsReference: boolean }, originalName: string | null): SubmissionView {
   const released = release.releasedAt !== null;
   const base: SubmissionView = {
     id: s.id,
@@ -75,6 +83,7 @@ export function submissionView(s: Submission, viewer: Viewer, release: { release
     reportedK: s.reportedK,
     reportedMethod: s.reportedMethod,
     readings: s.readings ? { time: s.readings.time, value: s.readings.value, n: s.readings.points.length, notes: s.readings.notes } : null,
+    ownLine: null,
   };
   if (viewer === "staff") {
     return {

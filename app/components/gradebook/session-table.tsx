@@ -1,4 +1,5 @@
 // A practical's gradebook: a row per group at a bench, from the group's latest version.
+import { FEED_RATIO_HEADER } from "~/lib/planning/feed-ratio";
 import { useMemo } from "react";
 import { Link } from "react-router";
 import type { SessionGradebookRow } from "~/.server/gradebook/session.server";
@@ -48,7 +49,7 @@ function sessionColumns(sessionId: number, kUnit: string): Array<GradeColumn<Row
     { id: "members", label: "Members", width: "w-56", text: (r) => r.members.join(", ") || "nobody", cell: (r) => <span className="text-sm">{r.members.join(", ") || <Missing reason="nobody in this group" />}</span> },
     numberColumn("CA0", "CA0", "(mol/L)", "w-20", (r) => r.CA0, (x) => sig(x, 4)),
     numberColumn("CB0", "CB0", "(mol/L)", "w-20", (r) => r.CB0, (x) => sig(x, 4)),
-    numberColumn("feedRatio", "Feed ratio", "(CB0/CA0)", "w-20", (r) => r.feedRatio, (x) => sig(x, 3)),
+    numberColumn("feedRatio", "Feed ratio", `(${FEED_RATIO_HEADER})`, "w-20", (r) => r.feedRatio, (x) => sig(x, 3)),
     numberColumn("temperatureC", "T", "(°C)", "w-16", (r) => r.temperatureC, (x) => sig(x, 3)),
     {
       id: "k", label: "Marking k", unit: `(${kUnit}), 95 % CI`, width: "w-60", numeric: true,

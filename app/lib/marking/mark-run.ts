@@ -7,6 +7,7 @@ import { analysisCheck, combine, experimentCheck, type CheckScore, type MarkPart
 import { feedbackLines } from "./feedback.ts";
 import { handLineK, markingK } from "./engine-result.ts";
 import type { MarkingRubric } from "./rubric.ts";
+import { withFileRows } from "./rows.ts";
 
 export interface MarkingContext {
   reaction: { a: number; b: number; orderA: number; orderB: number };
@@ -115,6 +116,8 @@ export function markRun(ctx: MarkingContext, run: RunInput): MarkAttempt {
       rows: [],
     });
   }
+  // flags name the file's own rows from here on (stored, shown to staff, exported)
+  result.flags = withFileRows(result.flags, rowNumbers);
   return { ok: true, result, experiment, analysis, parts, kMarking, kLine, kRefAtT, feedback, rowNumbers };
 }
 
@@ -123,5 +126,7 @@ export function previewRun(ctx: MarkingContext, run: Omit<RunInput, "late" | "ex
   const { request, rowNumbers } = buildRequest(ctx, { ...run, late: false, excludedRows: [], reportedK: null, reportedMethod: null }, false);
   const checked = validateFitRequest(request);
   if (!checked.ok) return { ok: false, errors: checked.errors };
-  return { ok: true, result: runFit(checked.request), rowNumbers };
+  const result = runFit(checked.request);
+  result.flags = withFileRows(result.flags, rowNumbers);
+  return { ok: true, result, rowNumbers };
 }

@@ -1,6 +1,7 @@
 // The feed designer: proposes one (CA0, CB0, T) per bench and predicts each bench's run with the
 // engine's closed forms and k(T) from the Arrhenius reference. Pure, so the JSON check route,
 // the pages and the tests run the same code.
+import { feedRatio } from "./feed-ratio.ts";
 import { concentrationA, lawFromOrders, limitingReagent, rateConstantAt, timeToReach, type Feed, type RateLaw } from "../kinetics";
 import { celsiusToKelvin } from "../kinetics/units";
 import { mixingVolumes, type MixingVolumes } from "./dilution";
@@ -177,7 +178,7 @@ export function predictBench(reaction: ReactionForDesign, session: SessionForDes
   }
   return {
     label: bench.label,
-    ratio: bench.CB0 / (nu * bench.CA0),
+    ratio: feedRatio(bench.CA0, bench.CB0, nu),
     limiting: limitingReagent(feed),
     kAtT: k,
     minutesToTarget: minutes,

@@ -2,6 +2,7 @@
 // predicted time to the target conversion, edited freely with the checks rerun as one types.
 import { useEffect, useRef, useState } from "react";
 import { data, Form, redirect, useFetcher, useNavigation } from "react-router";
+import { FEED_RATIO_HEADER } from "~/lib/planning/feed-ratio";
 import type { Route } from "./+types/session-new";
 import { requireCourseFromPath } from "~/.server/guards.server";
 import { readForm } from "~/.server/body.server";
@@ -189,7 +190,7 @@ export default function DesignPractical({ loaderData, actionData }: Route.Compon
               <div className="grid grid-cols-2 gap-x-4">
                 <Field label="Benches" name="benchCount" inputMode="numeric" defaultValue={v("benchCount")} error={e("benchCount")} />
                 <Field label="CA0 (mol/L)" name="CA0" inputMode="decimal" defaultValue={v("CA0")} error={e("CA0")} />
-                <Field label="Feed ratio M from" name="ratioMin" inputMode="decimal" defaultValue={v("ratioMin")} error={e("ratioMin")} hint="M = CB0 / (ν CA0)" />
+                <Field label="Feed ratio M from" name="ratioMin" inputMode="decimal" defaultValue={v("ratioMin")} error={e("ratioMin")} hint={FEED_RATIO_HEADER} />
                 <Field label="Feed ratio M to" name="ratioMax" inputMode="decimal" defaultValue={v("ratioMax")} error={e("ratioMax")} hint="1 is the stoichiometric feed" />
                 <Field label="Temperature from (°C)" name="tempMinC" inputMode="decimal" defaultValue={v("tempMinC")} error={e("tempMinC")} />
                 <Field label="Temperature to (°C)" name="tempMaxC" inputMode="decimal" defaultValue={v("tempMaxC")} error={e("tempMaxC")} />
@@ -228,7 +229,7 @@ export default function DesignPractical({ loaderData, actionData }: Route.Compon
                     <th className="px-2 py-2">CA0 (mol/L)</th>
                     <th className="px-2 py-2">CB0 (mol/L)</th>
                     <th className="px-2 py-2">T (°C)</th>
-                    <th className="px-2 py-2 text-right">M</th>
+                    <th className="px-2 py-2 text-right">{FEED_RATIO_HEADER}</th>
                     <th className="px-2 py-2 text-right">To target</th>
                     <th className="px-2 py-2 text-right">Stocks A + B, water</th>
                     <th className="px-2 py-2">Predicted CA(t)</th>

@@ -9,10 +9,18 @@ import { readForm } from "~/.server/body.server";
 import { whileDatabaseUp } from "~/.server/db/unavailable.server";
 import { requireSessionStaff } from "~/.server/submissions/context.server";
 import { loadSubmission } from "~/.server/submissions/access.server";
-import { addComment, excludeReading, includeReading, overrideMark, queueTabOf, releaseInfo, setReviewState } from "~/.server/submissions/review.server";
+import { addComment, excludeReading, includeReading, overrideMark, queueStops, queueTabOf, releaseInfo, reviewQueue, setReviewState } from "~/.server/submissions/review.server";
+import { neighbours } from "~/lib/marking/queue";
+import { withFileRows, fileRowsText } from "~/lib/marking/rows";
+import { flagTitle } from "~/lib/marking/flag-titles";
+import { MARKING_K_NAME, OWN_LINE_STAFF_NAME, markingKMethod, ownLineMethod } from "~/lib/marking/estimators";
+import { marksOutOf, partText } from "~/lib/marking/rubric-view";
+import { rubricFrom } from "~/lib/marking/rubric";
+import { FEED_RATIO_HEADER, feedRatio } from "~/lib/planning/feed-ratio";
+import { ReactionSystem } from "~/.server/db/reaction-systems.server";
 import { submissionView } from "~/.server/submissions/view.server";
 import { groupSubmissions } from "~/.server/submissions/list.server";
-import { plotsOf, valueLabel } from "~/.server/submissions/page-data.server";
+import { fittedRowNumbers, plotsOf, valueLabel } from "~/.server/submissions/page-data.server";
 import { SubmissionComment, SubmissionFile } from "~/.server/db/submissions.server";
 import { User } from "~/.server/db/models.server";
 import { Bench } from "~/.server/db/lab-sessions.server";
@@ -40,7 +48,14 @@ export async function loader({ request, params }: Route.LoaderArgs) {
     const view = submissionView(submission, "staff", await releaseInfo(session.id), file?.originalName ?? null);
     const comments = await SubmissionComment.findAll({ where: { submissionId: submission.id }, include: [{ model: User, as: "author", attributes: ["displayName"] }], order: [["createdAt", "ASC"]] });
     const bench = submission.benchId ? await Bench.findByPk(submission.benchId) : null;
+    const system = await ReactionSystem.findByPk(session.reactionSystemId, { attributes: ["id", "coeffA", "coeffB"] });
+    const nu = system && system.coeffA > 0 ? system.coeffB / system.coeffA : 1;
+    const queue = await reviewQueue(session);
     return {
+      around: neighbours(queueStops(queue.rows), submission.id),
+      outOf: marksOutOf(rubricFrom(session.rubric)),
+      flags: withFileRows(view.flags, fittedRowNumbers(submission)),
+      feedRatio: bench ? feedRatio(bench.CA0, bench.CB0, nu) : null,
       session: { id: session.id, title: session.title },
       group: { id: group.id, name: group.name },
       bench: bench ? { label: bench.label, CA0: bench.CA0, CB0: bench.CB0, temperatureC: bench.temperatureC } : null,
@@ -98,7 +113,7 @@ export async function action({ request, params }: Route.ActionArgs) {
 const input = "mt-1 w-full rounded border border-ink-soft bg-white px-3 py-2";
 
 export default function ReviewSubmission({ loaderData, actionData }: Route.ComponentProps) {
-  const { session, group, bench, view, file, versions, comments, plots, tab } = loaderData;
+  const { session, group, bench, view, file, versions, comments, plots, tab, around, outOf, flags } = loaderData;
   const navigation = useNavigation();
   const busy = navigation.state !== "idle";
   const fit = view.fit;
@@ -108,7 +123,13 @@ export default function ReviewSubmission({ loaderData, actionData }: Route.Compo
   return (
     <>
       <p className="mb-2 text-sm"><Link className="text-accent underline" to={`/sessions/${session.id}/review`}>← Review: {session.title}</Link> · <Link className="text-accent underline" to={`/sessions/${session.id}/gradebook`}>Gradebook</Link></p>
-      <PageTitle sub={bench ? <>Bench {bench.label}: CA0 {sig(bench.CA0)} mol/L, CB0 {sig(bench.CB0)} mol/L, {sig(bench.temperatureC, 3)} °C</> : null}>
+      <nav aria-label="Queue" className="mb-3 flex flex-wrap items-center gap-2 text-sm" data-testid="queue-nav">
+        {around.previous ? <Link className="rounded border border-ink-soft px-3 py-1" to={`/sessions/${session.id}/review/${around.previous.id}`}>← Previous ({around.previous.group})</Link> : <span className="rounded border border-rule px-3 py-1 text-ink-soft">← Previous</span>}
+        {around.next ? <Link className="rounded border border-ink-soft px-3 py-1" to={`/sessions/${session.id}/review/${around.next.id}`}>Next ({around.next.group}) →</Link> : <span className="rounded border border-rule px-3 py-1 text-ink-soft">Next →</span>}
+        {around.nextFlagged ? <Link className="rounded bg-accent px-3 py-1 font-bold text-accent-ink" to={`/sessions/${session.id}/review/${around.nextFlagged.id}`}>Next flagged ({around.nextFlagged.group}) →</Link> : <span className="rounded border border-rule px-3 py-1 text-ink-soft">No other flagged version</span>}
+        <span className="text-ink-soft">{around.position} of {around.of} in the queue</span>
+      </nav>
+      <PageTitle sub={bench ? <>Bench {bench.label}: CA0 {sig(bench.CA0)} mol/L, CB0 {sig(bench.CB0)} mol/L, {FEED_RATIO_HEADER} = {sig(loaderData.feedRatio, 3)}, {sig(bench.temperatureC, 3)} °C</> : null}>
         {group.name}, version {view.version}
       </PageTitle>
       <p className="mb-4 flex flex-wrap items-center gap-3"><StatusBadge status={view.status} late={view.late} /> <span>{{ flagged: "⚠ flagged", "to-check": "◌ to check", checked: "✓ checked" }[tab]}</span></p>
@@ -123,8 +144,8 @@ export default function ReviewSubmission({ loaderData, actionData }: Route.Compo
           {view.parts ? (
             <div className="overflow-x-auto"><table className="mt-2 border-collapse text-left text-sm">
               <tbody>
-                <tr className="border-b border-rule"><th className="py-1 pr-4">Experiment part</th><td className="num whitespace-nowrap py-1">{sig(view.parts.experimentPart, 3)} %</td><td className="py-1 pl-4">{checks ? <>k {sig(checks.kMarking)} against {sig(checks.kRefAtT)} {fit ? unitText(fit.kUnit) : ""} at the bench ({checks.experiment.deviationPct > 0 ? "+" : ""}{sig(checks.experiment.deviationPct, 3)} %, {checks.experiment.band})</> : null}</td></tr>
-                <tr className="border-b border-rule"><th className="py-1 pr-4">Analysis part</th><td className="num whitespace-nowrap py-1">{sig(view.parts.analysisPart, 3)} %</td><td className="py-1 pl-4">{checks ? <>reported {view.reportedK !== null ? sig(view.reportedK) : "nothing"}{view.reportedMethod ? ` (${methodText(view.reportedMethod)})` : ""} against the group's line {sig(checks.kLine)} ({Number.isFinite(checks.analysis.deviationPct) ? `${sig(checks.analysis.deviationPct, 3)} %` : "—"}, {checks.analysis.band})</> : null}</td></tr>
+                <tr className="border-b border-rule"><th className="py-1 pr-4">Experiment part</th><td className="num whitespace-nowrap py-1">{partText(view.parts.experimentPart, outOf.experiment)}</td><td className="py-1 pl-4">{checks ? <>{MARKING_K_NAME} {sig(checks.kMarking)} against {sig(checks.kRefAtT)} {fit ? unitText(fit.kUnit) : ""} at the bench ({checks.experiment.deviationPct > 0 ? "+" : ""}{sig(checks.experiment.deviationPct, 3)} %, {checks.experiment.band})</> : null}</td></tr>
+                <tr className="border-b border-rule"><th className="py-1 pr-4">Analysis part</th><td className="num whitespace-nowrap py-1">{partText(view.parts.analysisPart, outOf.analysis)}</td><td className="py-1 pl-4">{checks ? <>reported {view.reportedK !== null ? sig(view.reportedK) : "nothing"}{view.reportedMethod ? ` (${methodText(view.reportedMethod)})` : ""} against {OWN_LINE_STAFF_NAME.toLowerCase()} <span data-own-line-k={checks.kLine}>{sig(checks.kLine)}</span> ({Number.isFinite(checks.analysis.deviationPct) ? `${sig(checks.analysis.deviationPct, 3)} %` : "—"}, {checks.analysis.band})</> : null}</td></tr>
                 <tr className="border-b border-rule"><th className="py-1 pr-4">Late penalty</th><td className="num whitespace-nowrap py-1">{view.late ? `−${sig(view.parts.latePenalty, 3)} %` : "none"}</td><td /></tr>
                 <tr><th className="py-1 pr-4">Automatic mark</th><td className="num whitespace-nowrap py-1">{sig(view.parts.autoMark, 3)} %</td><td className="py-1 pl-4">{view.overrideReason ? <>override: “{view.overrideReason}”</> : null}</td></tr>
               </tbody>
@@ -132,9 +153,26 @@ export default function ReviewSubmission({ loaderData, actionData }: Route.Compo
           ) : null}
           {fit ? (
             <>
-              <p className="mt-3">k (straight line) <strong className="num">{withInterval(fit.k, fit.kCI95)} {unitText(fit.kUnit)}</strong>; curve fit {withInterval(fit.nonlinear.k, fit.nonlinear.kCI95)}; R² {sig(fit.r2, 5)}; {fit.n} readings; {sig(fit.fractionReacted * 100, 3)} % of the limiting reagent reacted; model {fit.model}.</p>
+              <dl className="mt-3 space-y-1 text-sm">
+                <div><dt className="inline font-bold">{MARKING_K_NAME}</dt> <dd className="inline"><strong className="num">{withInterval(fit.k, fit.kCI95)} {unitText(fit.kUnit)}</strong>: {markingKMethod(fit)}</dd></div>
+                {view.ownLine ? <div><dt className="inline font-bold">{OWN_LINE_STAFF_NAME}</dt> <dd className="inline num">{withInterval(view.ownLine.k, view.ownLine.kCI95)} {unitText(fit.kUnit)}: {ownLineMethod(fit)} (the analysis check's k)</dd></div> : null}
+                <div><dt className="inline font-bold">Curve fit</dt> <dd className="inline num">{withInterval(fit.nonlinear.k, fit.nonlinear.kCI95)}</dd></div>
+              </dl>
+              <p className="mt-1 text-sm">R² {sig(fit.r2, 5)}; {fit.n} readings; {sig(fit.fractionReacted * 100, 3)} % of the limiting reagent reacted; model {fit.model}.</p>
               <h3 className="mt-4 font-bold">Flags</h3>
-              {view.flags.length ? <ul className="mt-1 space-y-1 text-sm">{view.flags.map((f) => <li key={f.code} className="rounded border-l-4 border-warn bg-warn-soft px-3 py-1"><strong>⚠ {f.code}</strong>: {f.message}</li>)}</ul> : <p className="text-sm">None.</p>}
+              {flags.length ? <ul className="mt-1 space-y-1 text-sm">{flags.map((f) => (
+                <li key={f.code} className="rounded border-l-4 border-warn bg-warn-soft px-3 py-1" data-flag={f.code}>
+                  <strong>⚠ {flagTitle(f.code)}</strong>{f.fileRows.length ? <> ({fileRowsText(f.fileRows)} of the file)</> : null}: {f.message}
+                  {f.code === "outlier" && f.fileRows.length === 1 ? (
+                    <Form method="post" className="mt-1 flex flex-wrap items-center gap-2">
+                      <input type="hidden" name="intent" value="exclude" />
+                      <input type="hidden" name="row" value={f.fileRows[0]} />
+                      <input type="hidden" name="reason" value="wild reading flagged by the engine" />
+                      <button type="submit" disabled={busy} className="rounded border border-ink px-2 py-0.5 font-bold">Leave row {f.fileRows[0]} out and re-mark</button>
+                    </Form>
+                  ) : null}
+                </li>
+              ))}</ul> : <p className="text-sm">None.</p>}
               <h3 className="mt-4 font-bold">Feedback the group will read</h3>
               <ul className="mt-1 list-disc pl-6 text-sm">{view.feedback.map((l, i) => <li key={i}>{l}</li>)}</ul>
             </>
@@ -165,6 +203,7 @@ export default function ReviewSubmission({ loaderData, actionData }: Route.Compo
             <Form method="post">
               <input type="hidden" name="intent" value="exclude" />
               <label htmlFor="f-row" className="mt-2 block font-bold">Row in the file</label>
+              <p className="text-sm text-ink-soft">The row number in the uploaded file, as in the flags, the feedback and the plots' tooltips.</p>
               <input id="f-row" name="row" inputMode="numeric" className={input} />
               <label htmlFor="f-exclude-reason" className="mt-2 block font-bold">Reason</label>
               <input id="f-exclude-reason" name="reason" className={input} />

@@ -8,7 +8,7 @@ import { pathId } from "~/.server/ids.server";
 import { readForm } from "~/.server/body.server";
 import { whileDatabaseUp } from "~/.server/db/unavailable.server";
 import { requireSessionStaff } from "~/.server/submissions/context.server";
-import { releaseInfo, releaseMarks, reviewQueue, type QueueTab } from "~/.server/submissions/review.server";
+import { checkUnflagged, releaseInfo, releaseMarks, reviewQueue, type QueueTab } from "~/.server/submissions/review.server";
 import { PageTitle } from "~/components/page";
 import { FormMessage } from "~/components/form";
 import { StatusBadge } from "~/components/run-plots";
@@ -45,9 +45,16 @@ export async function loader({ request, params }: Route.LoaderArgs) {
 export async function action({ request, params }: Route.ActionArgs) {
   return whileDatabaseUp(false, async () => {
     const user = await requireUser(request);
-    const session = await requireSessionStaff(user, pathId(params.sessionId), false, ["instructor"]);
     const form = await readForm(request);
-    if (form.get("intent") !== "release") throw data({ message: "Unknown action: send intent=release." }, { status: 400 });
+    if (form.get("intent") === "check-unflagged") {
+      // demonstrators check versions too; the ids are the ones the page counted
+      const staffSession = await requireSessionStaff(user, pathId(params.sessionId), false);
+      const ids = String(form.get("ids") ?? "").split(",").map((x) => Number(x)).filter((x) => Number.isInteger(x) && x > 0);
+      const { changed, skipped } = await checkUnflagged(user, staffSession, ids);
+      return { checked: changed, skipped };
+    }
+    const session = await requireSessionStaff(user, pathId(params.sessionId), false, ["instructor"]);
+    if (form.get("intent") !== "release") throw data({ message: "Unknown action: send intent=release or intent=check-unflagged." }, { status: 400 });
     const { mails } = await releaseMarks(user, session, form.get("showReference") === "on");
     return { released: true, mails };
   });
@@ -57,6 +64,8 @@ export default function Review({ loaderData, actionData }: Route.ComponentProps)
   const { session, rows, counts, tab, releasedAt, canRelease } = loaderData;
   const navigation = useNavigation();
   const shown = rows.filter((r) => tab === "all" || r.latest?.tab === tab);
+  const unflagged = rows.filter((r) => r.latest && r.latest.tab === "to-check" && r.latest.status === "marked");
+  const unchecked = rows.filter((r) => r.latest && r.latest.tab !== "checked");
   return (
     <>
       <PageTitle sub={`${session.date} · ${rows.length} ${rows.length === 1 ? "group" : "groups"} at a bench · ${counts.none} without a submission`}>Review: {session.title}</PageTitle>
@@ -66,6 +75,23 @@ export default function Review({ loaderData, actionData }: Route.ComponentProps)
         <Link className="rounded border border-ink-soft px-3 py-1 hover:bg-accent-soft" to={`/sessions/${session.id}/gradebook`}>Gradebook</Link>
       </nav>
       {actionData && "released" in actionData ? <FormMessage tone="info">Marks released; {actionData.mails} e-mail(s) queued to the groups.</FormMessage> : null}
+      {actionData && "checked" in actionData ? <FormMessage tone="info">{actionData.checked} {actionData.checked === 1 ? "version" : "versions"} marked as checked{actionData.skipped ? `; ${actionData.skipped} left as they were (changed or flagged meanwhile)` : ""}.</FormMessage> : null}
+      {releasedAt && unchecked.length ? (
+        <div role="status" className="mb-4 rounded border-l-4 border-warn bg-warn-soft px-4 py-3" data-testid="unchecked-after-release">
+          <strong>Released, but {unchecked.length} {unchecked.length === 1 ? "version is" : "versions are"} not checked yet:</strong>{" "}
+          {unchecked.map((r, i) => <span key={r.groupId}>{i ? ", " : ""}<Link className="text-accent underline" to={`/sessions/${session.id}/review/${r.latest!.id}`}>{r.group}</Link>{r.latest!.tab === "flagged" ? " (flagged)" : ""}</span>)}
+        </div>
+      ) : null}
+      <div className="mb-4 flex flex-wrap items-center gap-3">
+        {rows.some((r) => r.latest?.tab === "flagged") ? <Link className="rounded bg-accent px-3 py-1 font-bold text-accent-ink" to={`/sessions/${session.id}/review/${rows.find((r) => r.latest?.tab === "flagged")!.latest!.id}`}>Start with the first flagged</Link> : null}
+        <Form method="post">
+          <input type="hidden" name="intent" value="check-unflagged" />
+          <input type="hidden" name="ids" value={unflagged.map((r) => r.latest!.id).join(",")} />
+          <button type="submit" disabled={navigation.state !== "idle" || unflagged.length === 0} className="rounded border border-ink px-3 py-1 font-bold disabled:opacity-50">
+            Mark all unflagged as checked ({unflagged.length} {unflagged.length === 1 ? "version" : "versions"})
+          </button>
+        </Form>
+      </div>
       <nav aria-label="Review queue" className="mb-4 flex flex-wrap gap-2">
         {TABS.map((t) => (
           <Link key={t.id} to={`?tab=${t.id}`} aria-current={tab === t.id ? "page" : undefined}
@@ -82,7 +108,7 @@ export default function Review({ loaderData, actionData }: Route.ComponentProps)
             <thead>
               <tr className="border-b-2 border-ink">
                 <th className="px-3 py-2">Group</th><th className="px-3 py-2">Bench</th><th className="num px-3 py-2">T / °C</th>
-                <th className="px-3 py-2">Latest</th><th className="num px-3 py-2">k vs reference</th><th className="num px-3 py-2">Mark</th><th className="px-3 py-2">Flags</th><th className="px-3 py-2">State</th>
+                <th className="px-3 py-2">Latest</th><th className="num px-3 py-2">k vs reference</th><th className="num px-3 py-2">Mark</th><th className="px-3 py-2">Why flagged</th><th className="px-3 py-2">State</th>
               </tr>
             </thead>
             <tbody>
@@ -94,7 +120,7 @@ export default function Review({ loaderData, actionData }: Route.ComponentProps)
                   <td className="px-3 py-2">{r.latest ? <>v{r.latest.version} of {r.versions} <StatusBadge status={r.latest.status} late={r.latest.late} /></> : <span className="text-ink-soft">no upload</span>}</td>
                   <td className="num px-3 py-2">{r.latest?.deviationPct !== null && r.latest?.deviationPct !== undefined ? `${r.latest.deviationPct > 0 ? "+" : "−"}${sig(Math.abs(r.latest.deviationPct), 3)} %` : "—"}</td>
                   <td className="num px-3 py-2">{r.latest?.mark !== null && r.latest?.mark !== undefined ? <>{sig(r.latest.mark, 3)} %{r.latest.overridden ? " (set)" : ""}</> : "—"}</td>
-                  <td className="px-3 py-2 text-sm">{r.latest?.markingError ? <span className="text-bad">✕ {r.latest.markingError}</span> : r.latest?.flags.length ? r.latest.flags.map((f) => <span key={f} className="mr-1 inline-block rounded border border-warn px-1 text-warn">⚠ {f}</span>) : r.latest ? "none" : ""}</td>
+                  <td className="px-3 py-2 text-sm" data-testid="why-flagged">{r.latest?.words.length ? r.latest.words.map((w) => <span key={w} title={r.latest?.markingError ?? undefined} className="mr-1 inline-block rounded border border-warn px-1 text-warn">⚠ {w}</span>) : r.latest ? "—" : ""}</td>
                   <td className="px-3 py-2 text-sm">{r.latest ? { flagged: "⚠ flagged", "to-check": "◌ to check", checked: "✓ checked" }[r.latest.tab] : ""}</td>
                 </tr>
               ))}

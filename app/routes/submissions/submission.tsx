@@ -15,6 +15,10 @@ import { PageTitle } from "~/components/page";
 import { ProblemList, RunPlotsView, StatusBadge } from "~/components/run-plots";
 import { sig, unitText, withInterval } from "~/lib/format";
 import { methodText } from "~/lib/marking/feedback";
+import { MARKING_K_NAME, OWN_LINE_NAME, markingKMethod, ownLineMethod } from "~/lib/marking/estimators";
+import { marksOutOf, partText } from "~/lib/marking/rubric-view";
+import { rubricFrom } from "~/lib/marking/rubric";
+import { LabSession } from "~/.server/db/lab-sessions.server";
 
 export const meta: Route.MetaFunction = ({ data }) => [{ title: `${data ? `Version ${data.view.version} · ` : ""}Submission · Ratebook` }];
 
@@ -25,8 +29,10 @@ export async function loader({ request, params }: Route.LoaderArgs) {
     const { submission, group, viewer } = await loadSubmission(user, id, false);
     const file = await SubmissionFile.findByPk(id, { attributes: ["originalName", "size"] });
     const view = submissionView(submission, viewer, await releaseInfo(submission.sessionId), file?.originalName ?? null);
+    const practical = await LabSession.findByPk(submission.sessionId, { attributes: ["id", "rubric"] });
     return {
       view,
+      outOf: marksOutOf(rubricFrom(practical?.rubric)),
       group: { id: group.id, name: group.name },
       staff: viewer === "staff",
       size: file?.size ?? 0,
@@ -37,7 +43,7 @@ export async function loader({ request, params }: Route.LoaderArgs) {
 }
 
 export default function SubmissionPage({ loaderData }: Route.ComponentProps) {
-  const { view, group, staff, plots, size } = loaderData;
+  const { view, group, staff, plots, size, outOf } = loaderData;
   const showMark = staff || view.released;
   const fit = view.fit;
   return (
@@ -68,9 +74,9 @@ export default function SubmissionPage({ loaderData }: Route.ComponentProps) {
           <h2 id="mark-h" className="text-2xl font-bold">Mark: <span className="num">{sig(view.mark, 3)} %</span></h2>
           <table className="mt-3 border-collapse text-left">
             <tbody>
-              <tr className="border-b border-rule"><th className="py-1 pr-6">Experiment (your k against the value for your bench)</th><td className="num whitespace-nowrap py-1">{sig(view.parts?.experimentPart, 3)} %</td></tr>
-              <tr className="border-b border-rule"><th className="py-1 pr-6">Analysis (your reported k against your own straight line)</th><td className="num whitespace-nowrap py-1">{sig(view.parts?.analysisPart, 3)} %</td></tr>
-              {view.late ? <tr className="border-b border-rule"><th className="py-1 pr-6">Late penalty</th><td className="num whitespace-nowrap py-1">−{sig(view.parts?.latePenalty, 3)} %</td></tr> : null}
+              <tr className="border-b border-rule"><th className="py-1 pr-6">Experiment (the marking k against the value for your bench)</th><td className="num whitespace-nowrap py-1">{partText(view.parts?.experimentPart, outOf.experiment)}</td></tr>
+              <tr className="border-b border-rule"><th className="py-1 pr-6">Analysis (your reported k against your straight line)</th><td className="num whitespace-nowrap py-1">{partText(view.parts?.analysisPart, outOf.analysis)}</td></tr>
+              {view.late ? <tr className="border-b border-rule"><th className="py-1 pr-6">Late penalty</th><td className="num whitespace-nowrap py-1">−{sig(view.parts?.latePenalty, 3)} marks</td></tr> : null}
               {view.parts?.overrideMark !== null && view.parts?.overrideMark !== undefined ? <tr><th className="py-1 pr-6">Set by a reviewer</th><td className="num whitespace-nowrap py-1">{sig(view.parts.overrideMark, 3)} %</td></tr> : null}
             </tbody>
           </table>
@@ -89,8 +95,8 @@ export default function SubmissionPage({ loaderData }: Route.ComponentProps) {
           <h2 id="fit-h" className="text-xl font-bold">{showMark ? "Your run" : "What Ratebook read (preview)"}</h2>
           <table className="mt-3 border-collapse text-left">
             <tbody>
-              <tr className="border-b border-rule"><th className="py-1 pr-6">k from the straight line</th><td className="num py-1">{withInterval(fit.k, fit.kCI95)} {unitText(fit.kUnit)}</td></tr>
-              <tr className="border-b border-rule"><th className="py-1 pr-6">Straight line for this feed</th><td className="py-1">{methodText(fit.line.form)}</td></tr>
+              {view.ownLine ? <tr className="border-b border-rule" data-estimator="own-line"><th className="py-1 pr-6">{OWN_LINE_NAME}: k<br /><span className="text-sm font-normal text-ink-soft">{ownLineMethod(fit)}; your reported k is checked against this</span></th><td className="num py-1" data-k={view.ownLine.k}>{withInterval(view.ownLine.k, view.ownLine.kCI95)} {unitText(fit.kUnit)}</td></tr> : null}
+              <tr className="border-b border-rule" data-estimator="marking-k"><th className="py-1 pr-6">{MARKING_K_NAME}<br /><span className="text-sm font-normal text-ink-soft">{markingKMethod(fit)}</span></th><td className="num py-1">{withInterval(fit.k, fit.kCI95)} {unitText(fit.kUnit)}</td></tr>
               <tr className="border-b border-rule"><th className="py-1 pr-6">Readings used</th><td className="num py-1">{fit.n}</td></tr>
               {view.reportedK !== null ? <tr className="border-b border-rule"><th className="py-1 pr-6">k you reported</th><td className="num py-1">{sig(view.reportedK)} {unitText(fit.kUnit)}{view.reportedMethod ? ` (from ${methodText(view.reportedMethod)})` : ""}</td></tr> : null}
               <tr><th className="py-1 pr-6">Limiting reagent reacted by the last reading</th><td className="num py-1">{sig(fit.fractionReacted * 100, 3)} %</td></tr>
