@@ -73,7 +73,7 @@ describe("one row numbering", () => {
     const after = (await Submission.findByPk(id))!;
     expect(after.excluded.map((e) => e.row)).toEqual([fileRow]);
     // any flag raised on the re-mark names a file row still in the fit, never the left-out one
-    for (const f of after.flags as Array<{ rows: number[]; fileRows: number[] }>) {
+    for (const f of after.flags as unknown as Array<{ rows: number[]; fileRows: number[] }>) {
       expect(f.fileRows).not.toContain(fileRow);
       f.rows.forEach((i, j) => expect(f.fileRows[j]).toBe(after.readings!.rowNumbers.filter((r) => r !== fileRow)[i]));
     }
