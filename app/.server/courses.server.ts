@@ -1,6 +1,7 @@
 import { fn, col, QueryTypes } from "sequelize";
 import { Course, CourseMembership, User, sequelize, type CourseRole } from "./db/models.server";
 import { recordAudit } from "./audit.server";
+import { Group, GroupMember } from "./db/groups.server";
 import type { FieldErrors, Outcome } from "./people.server";
 
 export interface CourseSummary {
@@ -120,8 +121,14 @@ export async function removeMember(actor: User, courseId: number, membershipId: 
       return { ok: false as const, errors: { form: "A course needs at least one instructor; add another before removing this one." } };
     }
     const before = { courseId, userId: m.userId, email: m.user!.email, role: m.role };
+    // Taken off the course means out of its group too: no reading or uploading for it afterwards.
+    const inGroup = await GroupMember.findOne({ where: { courseId, userId: m.userId }, include: [{ model: Group, as: "group" }], transaction });
+    if (inGroup) {
+      await inGroup.destroy({ transaction });
+      await recordAudit({ actorId: actor.id, action: "group.member-removed", entityType: "group", entityId: inGroup.groupId, before: { userId: m.userId, email: m.user!.email, group: inGroup.group?.name ?? null, reason: "taken off the course" } }, transaction);
+    }
     await m.destroy({ transaction });
-    await recordAudit({ actorId: actor.id, action: "membership.removed", entityType: "course_membership", entityId: membershipId, before }, transaction);
+    await recordAudit({ actorId: actor.id, action: "membership.removed", entityType: "course_membership", entityId: membershipId, before: { ...before, group: inGroup?.group?.name ?? null } }, transaction);
     return { ok: true as const, value: { name: m.user!.displayName } };
   });
 }

@@ -23,7 +23,8 @@ export async function viewerOfGroup(user: User, group: Group, api: boolean): Pro
   if (user.role === "admin") return "staff";
   const membership = await CourseMembership.findOne({ where: { courseId: group.courseId, userId: user.id } });
   if (membership && (membership.role === "instructor" || membership.role === "demonstrator")) return "staff";
-  const inGroup = await GroupMember.findOne({ where: { groupId: group.id, userId: user.id } });
+  // Group rights hold only while the person is still on the course (a stale group row grants nothing).
+  const inGroup = membership ? await GroupMember.findOne({ where: { groupId: group.id, userId: user.id } }) : null;
   if (inGroup) return "member";
   if (membership) deny(404, "There is no such group among yours.", api);
   deny(403, "You are not a member of this course.", api);
