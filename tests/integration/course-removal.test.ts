@@ -6,6 +6,8 @@ import { action as upload } from "~/routes/api/group-submissions";
 import { loader as submissionApi } from "~/routes/api/submission";
 import { loader as original } from "~/routes/api/submission-original";
 import { action as courseAction } from "~/routes/courses/course";
+import { action as sessionAction } from "~/routes/sessions/session";
+import { Bench } from "~/.server/db/lab-sessions.server";
 import { AuditEntry, CourseMembership } from "~/.server/db/models.server";
 import { GroupMember } from "~/.server/db/groups.server";
 import { closeSequelize } from "~/.server/db/sequelize.server";
@@ -60,5 +62,20 @@ describe("taken off the course", () => {
     await CourseMembership.destroy({ where: { courseId: p.course.id, userId: student.id } });
     expect(await GroupMember.findOne({ where: { groupId: group.id, userId: student.id } })).not.toBeNull();
     expect((await uploadAs(cookie, group.id)).status).toBe(403);
+  });
+});
+
+describe("bench assignment form", () => {
+  test("a malformed group id answers 400 and leaves every bench as it was", async () => {
+    const cookie = await signInAs(p.instructor.email, PASSWORD);
+    const before = (await Bench.findAll({ where: { sessionId: p.session.id }, order: [["id", "ASC"]] })).map((b) => [b.id, b.groupId]);
+    const form: Record<string, string> = { intent: "assign" };
+    for (const [id, groupId] of before) form[`bench-${id}`] = String(groupId ?? "");
+    form[`bench-${before[0][0]}`] = "12abc";
+    const res = await call(sessionAction, request(`/sessions/${p.session.id}`, { cookie, form }), { sessionId: String(p.session.id) });
+    expect(res.init?.status).toBe(400);
+    expect(res.data.message).toMatch(/not a group id/);
+    const after = (await Bench.findAll({ where: { sessionId: p.session.id }, order: [["id", "ASC"]] })).map((b) => [b.id, b.groupId]);
+    expect(after).toEqual(before);
   });
 });

@@ -37,7 +37,11 @@ export async function action({ request, params }: Route.ActionArgs) {
     if (intent === "assign") {
       for (const [k, v] of form) {
         const m = /^bench-(\d+)$/.exec(k);
-        if (m) mapping[Number(m[1])] = v === "" ? null : formId(form, k);
+        if (!m) continue;
+        // Empty means "no group"; anything else must be a group id, or nothing changes (a bad value must not empty the bench).
+        const groupId = v === "" ? null : formId(form, k);
+        if (v !== "" && groupId === null) return reply("error", `The group chosen for bench ${m[1]} is not a group id; reload the page and choose again. Nothing was changed.`, 400);
+        mapping[Number(m[1])] = groupId;
       }
     }
     const r = await assignGroups(user, access.session, intent === "assign" ? "manual" : "auto", mapping);
