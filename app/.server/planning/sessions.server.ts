@@ -236,7 +236,9 @@ export async function sessionView(access: SessionAccess) {
         temperatureC: b.temperatureC,
         groupId: b.groupId,
         groupName: b.group?.name ?? null,
-        predicted: { minutesToTarget: Number.isFinite(p.minutesToTarget) ? p.minutesToTarget : null, targetConversion: session.targetConversion },
+        // The predicted time is the closed form from the reference k at this bench: inverting it gives k,
+        // so only staff get it; a student sees the target alone (minutesToTarget null).
+        predicted: { minutesToTarget: staff && Number.isFinite(p.minutesToTarget) ? p.minutesToTarget : null, targetConversion: session.targetConversion },
         ...(staff ? { reference: { kAtT: p.kAtT }, warnings: p.warnings } : {}),
       };
     }),

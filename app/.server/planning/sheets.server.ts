@@ -40,7 +40,9 @@ function sheetFor(access: SessionAccess, bench: Bench & { group?: Group | null }
   const { session, reaction } = access;
   const volumes = mixingVolumes(bench, session);
   const available = session.slotMinutes - session.setupMinutes;
-  const seconds = secondsToTarget(reactionForDesign(reaction), bench, session.targetConversion);
+  // Figures from the reference k (time to target, a plan cut to it) would let a student work k
+  // out: their sheet samples over the whole time left after set-up, the same plan on every bench.
+  const seconds = access.staff ? secondsToTarget(reactionForDesign(reaction), bench, session.targetConversion) : NaN;
   return {
     benchId: bench.id,
     label: bench.label,

@@ -80,7 +80,7 @@ export function BenchSheet({ d, sheet }: { d: Omit<SheetsData, "sheets">; sheet:
       </div>
       <section aria-label="Sampling plan" className="mt-4">
         <h3 className="font-bold">Sampling plan: every {session.samplingIntervalS} s for {sheet.planMinutes} min ({session.slotMinutes - session.setupMinutes} min are left after set-up)</h3>
-        <p className="text-sm">Expected to reach {Math.round(session.targetConversion * 100)} % conversion in about {minutes(sheet.expectedMinutes)}. Record the {reaction.upload} at each time.</p>
+        <p className="text-sm">{sheet.expectedMinutes !== null ? `Expected to reach ${Math.round(session.targetConversion * 100)} % conversion in about ${minutes(sheet.expectedMinutes)}. ` : ""}Record the {reaction.upload} at each time.</p>
         <div className="mt-1 grid grid-cols-3 gap-x-4 text-sm tabular-nums sm:grid-cols-6 print:grid-cols-6">
           {sheet.samples.slice(0, 60).map((t) => (
             <div key={t} className="flex justify-between border-b border-black/40 py-0.5"><span>{fixed(t / 60, t % 60 ? 1 : 0)} min</span><span aria-hidden="true">______</span></div>
