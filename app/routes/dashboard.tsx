@@ -5,6 +5,10 @@ import { coursesFor, type CourseSummary } from "~/.server/courses.server";
 import { liveFigures } from "~/.server/dashboard/live.server";
 import { PageTitle, TableBox } from "~/components/page";
 import { LivePracticals } from "~/components/live-practicals";
+import { nextSteps, type NextStep } from "~/.server/dashboard/next-steps.server";
+import { formatDateTime, formatDay } from "~/lib/dates";
+import { groupLabel, upperFirst } from "~/lib/natural-order";
+import { fixed } from "~/lib/planning/format";
 
 export const meta: Route.MetaFunction = () => [{ title: "Dashboard · Ratebook" }];
 
@@ -12,7 +16,7 @@ export async function loader({ request }: Route.LoaderArgs) {
   const user = await requireUser(request);
   // Course staff see their practicals open for uploads, kept fresh by polling; students do not.
   const live = (await isCourseStaffSomewhere(user)) ? await liveFigures(user) : null;
-  return { role: user.role, name: user.displayName, courses: await coursesFor(user), live };
+  return { role: user.role, name: user.displayName, courses: await coursesFor(user), live, next: await nextSteps(user) };
 }
 
 const INTRO: Record<string, string> = {
@@ -54,14 +58,55 @@ function CourseTable({ courses, label }: { courses: CourseSummary[]; label: stri
   );
 }
 
+const UPLOAD_STATE: Record<NextStep["upload"]["state"], string> = {
+  none: "Nothing uploaded yet.",
+  received: "received, waiting to be marked.",
+  marked: "marked; the mark is shown when your instructor releases the marks.",
+  refused: "refused: the file could not be read.",
+  released: "marked and released: read your mark and feedback.",
+};
+
+/** A student's next step per practical: where to stand, what to mix, where to upload and by when. */
+function NextSteps({ steps }: { steps: NextStep[] }) {
+  return (
+    <section aria-labelledby="next-h" className="mb-8">
+      <h2 id="next-h" className="mb-3 text-xl font-bold">What to do next</h2>
+      <ul className="grid gap-4 md:grid-cols-2">
+        {steps.map((s) => (
+          <li key={`${s.sessionId}-${s.groupId}`} className="rounded border border-rule bg-white p-4">
+            <h3 className="text-lg font-bold">
+              <Link className="underline" to={`/sessions/${s.sessionId}`}>{s.practical}</Link> <span className="font-normal text-ink-soft">({s.courseCode}, {formatDay(s.date)})</span>
+            </h3>
+            <p>{upperFirst(groupLabel(s.group))} · bench {s.bench} · feed CA0 {fixed(s.feed.CA0, 4)} mol/L, CB0 {fixed(s.feed.CB0, 4)} mol/L at {fixed(s.feed.temperatureC, 1)} °C</p>
+            <p>Deadline: {s.deadline ? formatDateTime(s.deadline) : "none set"}</p>
+            <p>
+              Your latest upload{s.upload.version ? ` (version ${s.upload.version}, ${formatDateTime(s.upload.submittedAt)})` : ""}: {s.upload.version ? UPLOAD_STATE[s.upload.state] : UPLOAD_STATE.none}
+            </p>
+            {s.upload.reasons.length ? (
+              <ul className="ml-5 list-disc text-sm text-warn">{s.upload.reasons.map((r) => <li key={r}>{r}</li>)}</ul>
+            ) : null}
+            <p className="mt-2 flex flex-wrap gap-3">
+              <Link className="rounded bg-accent px-3 py-1 font-bold text-accent-ink" to={`/groups/${s.groupId}/submissions`}>
+                {s.upload.state === "released" ? "Marks and uploads" : "Upload readings"}
+              </Link>
+              <Link className="rounded border border-ink-soft px-3 py-1" to={`/sessions/${s.sessionId}/benches/${s.benchId}/sheet`}>Bench sheet</Link>
+            </p>
+          </li>
+        ))}
+      </ul>
+    </section>
+  );
+}
+
 export default function Dashboard({ loaderData }: Route.ComponentProps) {
-  const { role, name, courses, live } = loaderData;
+  const { role, name, courses, live, next } = loaderData;
   const current = courses.filter((c) => !c.archived);
   const archived = courses.filter((c) => c.archived);
   const mayCreate = role === "course-creator" || role === "admin";
   return (
     <>
       <PageTitle sub={INTRO[role]}>Hello, {name}</PageTitle>
+      {next.length ? <NextSteps steps={next} /> : null}
       {live ? <LivePracticals initial={live} /> : null}
       <section aria-labelledby="courses-h">
         <div className="mb-3 flex flex-wrap items-baseline gap-x-4">

@@ -4,6 +4,7 @@
 // with a line break or a direction override cannot add lines to a body or a header.
 import { z } from "zod";
 import { config } from "../config.server";
+import { groupLabel, upperFirst } from "../../lib/natural-order";
 
 /** One line of plain text: controls, line breaks, zero-width and direction marks become spaces. */
 export function inline(text: string, max = 200): string {
@@ -39,21 +40,23 @@ const TEMPLATES = {
     }),
   },
   "bench-notice": {
-    data: z.object({ name, group: name, practical: name, date: z.string().max(40), bench: name, sessionId: id, benchId: id, deadlineUtc: z.string().max(40).nullable() }),
-    render: (d: { name: string; group: string; practical: string; date: string; bench: string; sessionId: number; benchId: number; deadlineUtc: string | null }) => ({
+    // groupId is optional: jobs queued before the upload link was added still render
+    data: z.object({ name, group: name, practical: name, date: z.string().max(40), bench: name, sessionId: id, benchId: id, groupId: id.optional(), deadlineUtc: z.string().max(40).nullable() }),
+    render: (d: { name: string; group: string; practical: string; date: string; bench: string; sessionId: number; benchId: number; groupId?: number; deadlineUtc: string | null }) => ({
       subject: `Your bench for ${inline(d.practical)} on ${inline(d.date)}: bench ${inline(d.bench)}`,
       text:
-        `Hello ${inline(d.name)},\n\nYour group ${inline(d.group)} works at bench ${inline(d.bench)} in ${inline(d.practical)} on ${inline(d.date)}.\n` +
+        `Hello ${inline(d.name)},\n\n${upperFirst(groupLabel(inline(d.group)))} works at bench ${inline(d.bench)} in ${inline(d.practical)} on ${inline(d.date)}.\n` +
         `Your bench sheet (feed, temperature, volumes to mix, sampling plan and hazard cautions):\n\n` +
         `${config.appUrl}/sessions/${d.sessionId}/benches/${d.benchId}/sheet\n\n` +
-        (d.deadlineUtc ? `Upload your readings by ${inline(d.deadlineUtc)} UTC.\n` : ""),
+        (d.deadlineUtc ? `Upload your readings by ${inline(d.deadlineUtc)} UTC.\n` : "") +
+        (d.groupId ? `Upload your readings here:\n\n${config.appUrl}/groups/${d.groupId}/submissions\n` : ""),
     }),
   },
   "marks-released": {
     data: z.object({ name, practical: name, group: name, groupId: id }),
     render: (d: { name: string; practical: string; group: string; groupId: number }) => ({
       subject: `Marks released: ${inline(d.practical)}`,
-      text: `Hello ${inline(d.name)},\n\nThe marks and feedback for "${inline(d.practical)}" (group ${inline(d.group)}) are ready.\nRead them at ${config.appUrl}/groups/${d.groupId}/submissions\n\nRatebook`,
+      text: `Hello ${inline(d.name)},\n\nThe marks and feedback for "${inline(d.practical)}" (${groupLabel(inline(d.group))}) are ready.\nRead them at ${config.appUrl}/groups/${d.groupId}/submissions\n\nRatebook`,
     }),
   },
 } as const;

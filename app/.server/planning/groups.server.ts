@@ -3,6 +3,7 @@ import { QueryTypes } from "sequelize";
 import { CourseMembership, sequelize, User as UserModel, type User } from "../db/models.server";
 import { Group, GroupMember } from "../db/groups.server";
 import { recordAudit } from "../audit.server";
+import { naturalCompare } from "~/lib/natural-order";
 
 export interface MyGroup {
   id: number;
@@ -39,6 +40,7 @@ export async function courseGroups(courseId: number) {
   });
   const students = await CourseMembership.findAll({ where: { courseId, role: "student" }, include: [{ model: UserModel, as: "user", attributes: ["id", "displayName", "email"] }] });
   const grouped = new Set(groups.flatMap((g) => (g.members ?? []).map((m) => m.userId)));
+  groups.sort((a, b) => naturalCompare(a.name, b.name));
   return {
     groups: groups.map((g) => ({
       id: g.id,

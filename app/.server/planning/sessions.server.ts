@@ -12,6 +12,7 @@ import { requireCourseRole } from "../guards.server";
 import { recordAudit } from "../audit.server";
 import { queueMail } from "../mail/outbox.server";
 import { benchProblems, predictBench, proposeBenches, sessionProblems, type BenchFeed, type Problem, type ReactionForDesign, type SessionForDesign } from "~/lib/planning/feed-design";
+import { naturalCompare } from "~/lib/natural-order";
 
 const num = (msg: string) => z.number({ error: msg });
 const int = (msg: string) => z.number({ error: msg }).int({ error: "Use a whole number." });
@@ -281,18 +282,40 @@ export async function updateBench(actor: User, session: LabSession, reaction: Re
 
 /**
  * Groups to benches. `mapping` gives a group id (or null) per bench id; "auto" fills benches in
- * order with the groups not yet placed, by name. One group a bench.
+ * order with the groups not yet placed, in natural name order. One group a bench.
+ * `shown` is what the form showed per bench: a bench the person did not change keeps what it has
+ * now (a stale form never undoes someone else's or an automatic fill), and taking a group off a
+ * bench needs `confirmRemove`, so one press cannot clear the plan.
  */
-export async function assignGroups(actor: User, session: LabSession, mode: "auto" | "manual", mapping: Record<number, number | null> = {}) {
+export async function assignGroups(
+  actor: User,
+  session: LabSession,
+  mode: "auto" | "manual",
+  mapping: Record<number, number | null> = {},
+  shown?: Record<number, number | null>,
+  confirmRemove = false,
+) {
   const benches = await Bench.findAll({ where: { sessionId: session.id }, order: [["position", "ASC"]] });
-  const groups = await Group.findAll({ where: { courseId: session.courseId }, order: [["name", "ASC"]] });
+  const groups = (await Group.findAll({ where: { courseId: session.courseId } })).sort((a, b) => naturalCompare(a.name, b.name));
   const groupIds = new Set(groups.map((g) => g.id));
   const target = new Map<number, number | null>(benches.map((b) => [b.id, b.groupId]));
   if (mode === "manual") {
+    const removing: string[] = [];
     for (const [benchId, groupId] of Object.entries(mapping)) {
-      if (!target.has(Number(benchId))) return { ok: false as const, message: `Bench ${benchId} is not part of this practical.` };
+      const id = Number(benchId);
+      if (!target.has(id)) return { ok: false as const, message: `Bench ${benchId} is not part of this practical.` };
       if (groupId !== null && !groupIds.has(groupId)) return { ok: false as const, message: "One of the chosen groups is not in this course." };
-      target.set(Number(benchId), groupId);
+      if (shown && id in shown && shown[id] === groupId) continue; // not changed in the form
+      const now = target.get(id) ?? null;
+      if (now !== null && groupId === null) removing.push(benches.find((b) => b.id === id)!.label);
+      target.set(id, groupId);
+    }
+    if (removing.length && !confirmRemove) {
+      return {
+        ok: false as const,
+        confirm: true as const,
+        message: `This takes the group off bench ${removing.join(", ")}. Nothing was saved: tick "Yes, take these groups off their benches" and save again to go ahead.`,
+      };
     }
   } else {
     const placed = new Set([...target.values()].filter((g): g is number => g !== null));
@@ -344,6 +367,7 @@ export async function notifyGroups(actor: User, session: LabSession) {
           bench: bench.label,
           sessionId: session.id,
           benchId: bench.id,
+          groupId: m.groupId,
           deadlineUtc: session.deadline ? session.deadline.toISOString().slice(0, 16).replace("T", " ") : null,
         },
         { transaction },

@@ -47,6 +47,7 @@ function sheetFor(access: SessionAccess, bench: Bench & { group?: Group | null }
     benchId: bench.id,
     label: bench.label,
     group: bench.group?.name ?? null,
+    groupId: bench.groupId,
     CA0: bench.CA0,
     CB0: bench.CB0,
     temperatureC: bench.temperatureC,

@@ -3,6 +3,7 @@ import { Link } from "react-router";
 import type { Hazards, Paper, SheetsData } from "~/.server/planning/sheets.server";
 import { fixed, minutes, mL } from "~/lib/planning/format";
 import { CLOSING_CAUTION } from "~/lib/planning/hazards";
+import { groupLabel } from "~/lib/natural-order";
 
 export function PrintBar({ paper, base, extra }: { paper: Paper; base: string; extra?: React.ReactNode }) {
   return (
@@ -90,7 +91,7 @@ export function BenchSheet({ d, sheet }: { d: Omit<SheetsData, "sheets">; sheet:
       </section>
       <section aria-label="What to upload" className="mt-4 text-sm">
         <h3 className="font-bold">What to upload, and by when</h3>
-        <p>One CSV or .xlsx file per group: a column of times (s or min) and a column of {reaction.upload}, with a header row. Upload it on Ratebook by <strong>{deadline}</strong>.</p>
+        <p>One CSV or .xlsx file per group: a column of times (s or min) and a column of {reaction.upload}, with a header row. Upload it on Ratebook by <strong>{deadline}</strong>{sheet.groupId ? <>: <Link className="font-bold underline" to={`/groups/${sheet.groupId}/submissions`}>upload page of {sheet.group ? groupLabel(sheet.group) : "your group"}</Link> <span className="hidden print:inline">({`/groups/${sheet.groupId}/submissions`})</span></> : null}.</p>
       </section>
       <HazardCautions hazards={d.hazards} />
     </article>

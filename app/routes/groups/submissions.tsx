@@ -19,6 +19,8 @@ import { REPORTED_METHODS, methodText } from "~/lib/marking/feedback";
 import type { RunPlots } from "~/lib/marking/plots";
 import { sig, unitText, withInterval } from "~/lib/format";
 import { lawFromOrders, rateConstantUnit, type FitResult } from "~/lib/kinetics";
+import { groupLabel, upperFirst } from "~/lib/natural-order";
+import { formatDateTime } from "~/lib/dates";
 
 export const meta: Route.MetaFunction = () => [{ title: "Upload readings · Ratebook" }];
 
@@ -142,7 +144,7 @@ export default function GroupSubmissions({ loaderData, actionData }: Route.Compo
     return (
       <>
         <PageTitle>Upload readings</PageTitle>
-        <p className="rounded border border-dashed border-rule p-6">Group {group.name} has no bench in a practical yet. Your instructor assigns benches; come back after that. <Link className="text-accent underline" to="/dashboard">Back to the dashboard</Link></p>
+        <p className="rounded border border-dashed border-rule p-6">{upperFirst(groupLabel(group.name))} has no bench in a practical yet. Your instructor assigns benches; come back after that. <Link className="text-accent underline" to="/dashboard">Back to the dashboard</Link></p>
       </>
     );
   }
@@ -155,7 +157,7 @@ export default function GroupSubmissions({ loaderData, actionData }: Route.Compo
       <PageTitle sub={<>{practical.title} · {practical.date} · bench {practical.bench}: CA0 {sig(practical.CA0)} mol/L, CB0 {sig(practical.CB0)} mol/L, {sig(practical.temperatureC, 3)} °C</>}>
         Upload readings: {group.name}
       </PageTitle>
-      {deadline ? <p className="mb-4 text-sm">Deadline {deadline.toLocaleString("en-GB", { timeZone: "UTC" })} UTC. Files sent later are accepted and marked late.</p> : null}
+      {deadline ? <p className="mb-4 text-sm">Deadline {formatDateTime(deadline)}. Files sent later are accepted and marked late.</p> : null}
 
       {submitErrors.length ? <FormMessage tone="error">{submitErrors.map((e) => `${e.path ? `${e.path}: ` : ""}${e.message}`).join(" ")}</FormMessage> : null}
 

@@ -9,6 +9,7 @@ import { Group } from "~/.server/db/groups.server";
 import { assignGroups, benchSchema, detailsSchema, notifyGroups, sessionAccess, sessionView, updateBench, updateSessionDetails } from "~/.server/planning/sessions.server";
 import { parseWithZod } from "@conform-to/zod/v4";
 import { fixed, minutes } from "~/lib/planning/format";
+import { naturalSort } from "~/lib/natural-order";
 import { fieldError, typed, type FormResult } from "~/lib/form-result";
 import { Button, Field, FormMessage } from "~/components/form";
 import { PageTitle, TableBox } from "~/components/page";
@@ -19,11 +20,11 @@ export async function loader({ request, params }: Route.LoaderArgs) {
   const user = await requireUser(request);
   const access = await sessionAccess(user, pathId(params.sessionId));
   const view = await sessionView(access);
-  const groups = access.staff ? (await Group.findAll({ where: { courseId: access.session.courseId }, order: [["name", "ASC"]] })).map((g) => ({ id: g.id, name: g.name })) : [];
+  const groups = access.staff ? naturalSort(await Group.findAll({ where: { courseId: access.session.courseId } }), (g) => g.name).map((g) => ({ id: g.id, name: g.name })) : [];
   return { view, groups, role: access.role, staff: access.staff, course: { id: access.course.id, code: access.course.code } };
 }
 
-type ActionData = { tone: "info" | "error"; message: string; benchId?: number; details?: FormResult };
+type ActionData = { tone: "info" | "error"; message: string; benchId?: number; details?: FormResult; confirmRemove?: boolean };
 
 export async function action({ request, params }: Route.ActionArgs) {
   const user = await requireUser(request);
@@ -34,18 +35,24 @@ export async function action({ request, params }: Route.ActionArgs) {
   const reply = (tone: ActionData["tone"], message: string, status = 200, benchId?: number) => data<ActionData>({ tone, message, benchId }, { status });
   if (intent === "assign-auto" || intent === "assign") {
     const mapping: Record<number, number | null> = {};
+    const shown: Record<number, number | null> = {};
     if (intent === "assign") {
       for (const [k, v] of form) {
+<<<<<<< HEAD
         const m = /^bench-(\d+)$/.exec(k);
         if (!m) continue;
         // Empty means "no group"; anything else must be a group id, or nothing changes (a bad value must not empty the bench).
         const groupId = v === "" ? null : formId(form, k);
         if (v !== "" && groupId === null) return reply("error", `The group chosen for bench ${m[1]} is not a group id; reload the page and choose again. Nothing was changed.`, 400);
         mapping[Number(m[1])] = groupId;
+=======
+        const m = /^(was-)?bench-(\d+)$/.exec(k);
+        if (m) (m[1] ? shown : mapping)[Number(m[2])] = v === "" ? null : formId(form, k);
+>>>>>>> 6b85556 (Wayfinding: student dashboard leads with the next step and an upload link; assignment e-mail and bench sheet link to the upload page; a save keeps benches the person did not change and asks before taking a group off; automatic fill shows at once; natural group order; one date helper; browser test)
       }
     }
-    const r = await assignGroups(user, access.session, intent === "assign" ? "manual" : "auto", mapping);
-    if (!r.ok) return reply("error", r.message, 400);
+    const r = await assignGroups(user, access.session, intent === "assign" ? "manual" : "auto", mapping, shown, form.get("confirmRemove") === "yes");
+    if (!r.ok) return data<ActionData>({ tone: "error", message: r.message, confirmRemove: "confirm" in r }, { status: 400 });
     return reply("info", `${r.placed} group(s) have a bench${r.unplaced ? `; ${r.unplaced} group(s) have none (more groups than benches)` : ""}.`);
   }
   if (intent === "notify") {
@@ -145,10 +152,14 @@ export default function PracticalPage({ loaderData, actionData }: Route.Componen
                         <td className="num px-2 py-1">{minutes(b.predicted.minutesToTarget)}</td>
                         <td className="px-2 py-1">
                           {isInstructor ? (
-                            <select aria-label={`Group at bench ${b.label}`} name={`bench-${b.id}`} defaultValue={b.groupId ?? ""} className="rounded border border-ink-soft bg-white px-2 py-1">
-                              <option value="">— none —</option>
-                              {groups.map((g) => <option key={g.id} value={g.id}>{g.name}</option>)}
-                            </select>
+                            <>
+                              {/* keyed by the saved group: after an automatic fill the menu shows the new group at once */}
+                              <select key={`${b.id}-${b.groupId ?? ""}`} aria-label={`Group at bench ${b.label}`} name={`bench-${b.id}`} defaultValue={b.groupId ?? ""} className="rounded border border-ink-soft bg-white px-2 py-1">
+                                <option value="">— none —</option>
+                                {groups.map((g) => <option key={g.id} value={g.id}>{g.name}</option>)}
+                              </select>
+                              <input key={`was-${b.id}-${b.groupId ?? ""}`} type="hidden" name={`was-bench-${b.id}`} value={b.groupId ?? ""} />
+                            </>
                           ) : (b.groupName ?? "—")}
                         </td>
                         <td className="px-2 py-1 text-sm">
@@ -160,7 +171,12 @@ export default function PracticalPage({ loaderData, actionData }: Route.Componen
                 </table>
               </TableBox>
               {isInstructor ? (
-                <div className="mt-3 flex flex-wrap gap-3">
+                <div className="mt-3 flex flex-wrap items-center gap-3">
+                  {actionData?.confirmRemove ? (
+                    <label className="font-bold text-warn">
+                      <input type="checkbox" name="confirmRemove" value="yes" className="mr-2" />Yes, take these groups off their benches
+                    </label>
+                  ) : null}
                   <Button name="intent" value="assign" busy={busy}>Save group assignment</Button>
                   <button type="submit" name="intent" value="assign-auto" className="rounded border border-ink-soft px-4 py-2 hover:bg-accent-soft">Fill empty benches automatically</button>
                 </div>

@@ -19,6 +19,7 @@ import { MARKING_K_NAME, OWN_LINE_NAME, markingKMethod, ownLineMethod } from "~/
 import { marksOutOf, partText } from "~/lib/marking/rubric-view";
 import { rubricFrom } from "~/lib/marking/rubric";
 import { LabSession } from "~/.server/db/lab-sessions.server";
+import { groupLabel, upperFirst } from "~/lib/natural-order";
 
 export const meta: Route.MetaFunction = ({ data }) => [{ title: `${data ? `Version ${data.view.version} · ` : ""}Submission · Ratebook` }];
 
@@ -49,7 +50,7 @@ export default function SubmissionPage({ loaderData }: Route.ComponentProps) {
   return (
     <>
       <p className="mb-2 text-sm"><Link className="text-accent underline" to={`/groups/${group.id}/submissions`}>← {group.name}: uploads</Link></p>
-      <PageTitle sub={<>Group {group.name} · sent {new Date(view.submittedAt).toLocaleString("en-GB", { timeZone: "UTC" })} UTC · {view.originalName} ({sig(size / 1024, 3)} kB)</>}>
+      <PageTitle sub={<>{upperFirst(groupLabel(group.name))} · sent {new Date(view.submittedAt).toLocaleString("en-GB", { timeZone: "UTC" })} UTC · {view.originalName} ({sig(size / 1024, 3)} kB)</>}>
         {view.status === "refused" ? `Version ${view.version}: not accepted` : showMark && view.mark !== null ? `Version ${view.version}: feedback` : `Received, version ${view.version}`}
       </PageTitle>
       <p className="mb-4"><StatusBadge status={view.status} late={view.late} /></p>
