@@ -34,3 +34,19 @@ export function formatDay(day: string | null | undefined): string {
   if (Number.isNaN(d.getTime())) return day;
   return formatFor("UTC", false).format(d);
 }
+
+/** True when "YYYY-MM-DD" names a day of the calendar (31 February does not exist). */
+export function isRealDay(text: string): boolean {
+  const m = /^(\d{4})-(\d{2})-(\d{2})$/.exec(text);
+  if (!m) return false;
+  const [y, mo, d] = [Number(m[1]), Number(m[2]), Number(m[3])];
+  const t = new Date(Date.UTC(y, mo - 1, d));
+  return t.getUTCFullYear() === y && t.getUTCMonth() === mo - 1 && t.getUTCDate() === d;
+}
+
+/** True when "YYYY-MM-DDTHH:MM" (seconds optional, nothing after) is a real day and time of day. */
+export function isRealDateTime(text: string): boolean {
+  const m = /^(\d{4}-\d{2}-\d{2})T(\d{2}):(\d{2})(?::(\d{2}))?$/.exec(text);
+  if (!m) return false;
+  return isRealDay(m[1]) && Number(m[2]) < 24 && Number(m[3]) < 60 && Number(m[4] ?? 0) < 60;
+}

@@ -275,6 +275,17 @@ describe("feed designer", () => {
     expect(statusOf(bad)).toBe(400);
     expect(payloadOf(bad).details.error.slotMinutes[0]).toContain("longer than 0 minutes");
     expect((await LabSession.findByPk(sessionId))!.slotMinutes).toBe(150); // nothing stored changed
+    // an impossible day or trailing text is refused beside the field (was a 500, or 31 Feb kept as 3 Mar)
+    for (const [field, value, message] of [
+      ["deadline", "2027-02-31T17:00", "no such date"],
+      ["deadline", "2027-03-09T17:00 tomorrow", "nothing after it"],
+      ["date", "2027-02-30", "no such day"],
+    ] as const) {
+      const r = await call(sessionAction, request(`/sessions/${sessionId}`, { cookie: instructor, form: { ...details, [field]: value } }), p);
+      expect(statusOf(r), value).toBe(400);
+      expect(payloadOf(r).details.error[field][0]).toContain(message);
+    }
+    expect((await LabSession.findByPk(sessionId))!.deadline).toBeNull();
     expect(statusOf(await call(sessionAction, request(`/sessions/${sessionId}`, { cookie: instructor, form: details }), p))).toBe(200);
     const changed = await AuditEntry.findOne({ where: { entityId: String(sessionId), action: "session.details-changed-after-notice" } });
     expect((changed!.before as { deadline: string | null }).deadline).toBeNull();

@@ -13,6 +13,7 @@ import { recordAudit } from "../audit.server";
 import { queueMail } from "../mail/outbox.server";
 import { benchProblems, predictBench, proposeBenches, sessionProblems, type BenchFeed, type Problem, type ReactionForDesign, type SessionForDesign } from "~/lib/planning/feed-design";
 import { naturalCompare } from "~/lib/natural-order";
+import { isRealDateTime, isRealDay } from "~/lib/dates";
 
 const num = (msg: string) => z.number({ error: msg });
 const int = (msg: string) => z.number({ error: msg }).int({ error: "Use a whole number." });
@@ -26,7 +27,10 @@ export const benchSchema = z.object({
 
 const sessionFields = {
   title: z.string({ error: "Enter a title." }).trim().min(1, { error: "Enter a title." }).max(160, { error: "Use at most 160 characters." }),
-  date: z.string({ error: "Choose the lab day." }).regex(/^\d{4}-\d{2}-\d{2}$/, { error: "Use the date form YYYY-MM-DD." }),
+  date: z
+    .string({ error: "Choose the lab day." })
+    .regex(/^\d{4}-\d{2}-\d{2}$/, { error: "Use the date form YYYY-MM-DD." })
+    .refine((t) => !/^\d{4}-\d{2}-\d{2}$/.test(t) || isRealDay(t), { error: "There is no such day: check the day of the month." }),
   reactionSystemId: int("Choose a reaction system.").positive({ error: "Choose a reaction system." }),
   slotMinutes: int("Enter the slot length in minutes.").positive({ error: "The slot must be longer than 0 minutes." }).max(720, { error: "A slot of more than 12 h is not a lab session." }),
   setupMinutes: int("Enter the set-up time in minutes.").min(0, { error: "Set-up time cannot be negative." }),
@@ -35,7 +39,12 @@ const sessionFields = {
   stockBMolL: num("Enter the stock concentration of B in mol/L.").positive({ error: "The stock of B must be above 0 mol/L." }),
   samplingIntervalS: int("Enter the sampling interval in seconds.").positive({ error: "The sampling interval must be longer than 0 s." }),
   targetConversionPct: num("Enter the target conversion in %.").gt(0, { error: "Use more than 0 %." }).lt(100, { error: "Use less than 100 %." }),
-  deadline: z.string().regex(/^\d{4}-\d{2}-\d{2}T\d{2}:\d{2}/, { error: "Use a date and time." }).optional(),
+  // a whole date and time and nothing after it; 31 February is refused, not moved to 3 March
+  deadline: z
+    .string()
+    .regex(/^\d{4}-\d{2}-\d{2}T\d{2}:\d{2}(:\d{2})?$/, { error: "Use a date and time (YYYY-MM-DDTHH:MM), with nothing after it." })
+    .refine((t) => !/^\d{4}-\d{2}-\d{2}T\d{2}:\d{2}(:\d{2})?$/.test(t) || isRealDateTime(t), { error: "There is no such date or time: check the day of the month and the hour." })
+    .optional(),
   fullWithinPct: num("Enter a percentage.").positive({ error: "Use more than 0 %." }),
   partialWithinPct: num("Enter a percentage.").positive({ error: "Use more than 0 %." }),
   partialFraction: num("Enter a fraction from 0 to 1.").min(0, { error: "Use 0 to 1." }).max(1, { error: "Use 0 to 1." }),
