@@ -38,17 +38,12 @@ export async function action({ request, params }: Route.ActionArgs) {
     const shown: Record<number, number | null> = {};
     if (intent === "assign") {
       for (const [k, v] of form) {
-<<<<<<< HEAD
-        const m = /^bench-(\d+)$/.exec(k);
+        const m = /^(was-)?bench-(\d+)$/.exec(k);
         if (!m) continue;
         // Empty means "no group"; anything else must be a group id, or nothing changes (a bad value must not empty the bench).
         const groupId = v === "" ? null : formId(form, k);
-        if (v !== "" && groupId === null) return reply("error", `The group chosen for bench ${m[1]} is not a group id; reload the page and choose again. Nothing was changed.`, 400);
-        mapping[Number(m[1])] = groupId;
-=======
-        const m = /^(was-)?bench-(\d+)$/.exec(k);
-        if (m) (m[1] ? shown : mapping)[Number(m[2])] = v === "" ? null : formId(form, k);
->>>>>>> 6b85556 (Wayfinding: student dashboard leads with the next step and an upload link; assignment e-mail and bench sheet link to the upload page; a save keeps benches the person did not change and asks before taking a group off; automatic fill shows at once; natural group order; one date helper; browser test)
+        if (v !== "" && groupId === null) return reply("error", `The group chosen for bench ${m[2]} is not a group id; reload the page and choose again. Nothing was changed.`, 400);
+        (m[1] ? shown : mapping)[Number(m[2])] = groupId;
       }
     }
     const r = await assignGroups(user, access.session, intent === "assign" ? "manual" : "auto", mapping, shown, form.get("confirmRemove") === "yes");
