@@ -17,6 +17,7 @@
 // app servers, the two after for the mail sink. Usage: npm run bench:cluster (as root on a clean
 // clone: it installs nginx if needed and builds).
 import { spawn, spawnSync, type ChildProcess } from "node:child_process";
+import { stopChild } from "../lib/child-process";
 import crypto from "node:crypto";
 import fs from "node:fs";
 import os from "node:os";
@@ -204,15 +205,6 @@ async function startWorker(i: number, env: NodeJS.ProcessEnv) {
     child.once("exit", (code) => reject(new Error(`worker ${i + 1} exited (${code}) before it ran`)));
   });
   return child;
-}
-
-function stopChild(child: ChildProcess): Promise<void> {
-  if (child.exitCode !== null || child.signalCode !== null) return Promise.resolve();
-  return new Promise((resolve) => {
-    child.once("exit", () => resolve());
-    child.kill("SIGTERM");
-    setTimeout(() => child.kill("SIGKILL"), 5000).unref();
-  });
 }
 
 // ---- the upload burst (through the balancer) ---------------------------------------------------
@@ -537,7 +529,7 @@ try {
 } finally {
   finishing = true;
   if (nginxStarted) spawnSync(nginxBin, ["-c", path.join(work, "nginx.conf"), "-p", work, "-s", "stop"], { stdio: "ignore" });
-  await Promise.all([...children].map(stopChild));
+  await Promise.all([...children].map((c) => stopChild(c)));
   await sink.close();
   await pool.end().catch(() => undefined);
   await dropDatabase(DB_NAME).catch((e) => console.error(`[cluster] could not drop ${DB_NAME}: ${(e as Error).message}`));

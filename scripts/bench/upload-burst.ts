@@ -15,6 +15,7 @@
 // Usage: npm run bench:uploads  (BENCH_APP_PORT=3190, BENCH_GROUPS=200, BENCH_ROWS=5000,
 //        BENCH_IN_FLIGHT=20, BENCH_BURST_SECONDS=30, BENCH_OUTAGE_SECONDS=3, WORKER_CONCURRENCY=4)
 import { spawn, type ChildProcess } from "node:child_process";
+import { stopChild } from "../lib/child-process";
 import path from "node:path";
 import pg from "pg";
 import { BENCH_BASE, ensureBuild, machineNote, openBenchDatabase, startAppServer } from "./lib/http-load";
@@ -300,15 +301,6 @@ async function queueDrained(client: pg.Pool) {
     await sleep(200);
   }
   throw new Error("the demo data's marking jobs did not finish in 120 s");
-}
-
-function stopChild(child: ChildProcess): Promise<void> {
-  if (child.exitCode !== null || child.signalCode !== null) return Promise.resolve();
-  return new Promise((resolve) => {
-    child.once("exit", () => resolve());
-    child.kill("SIGTERM");
-    setTimeout(() => child.kill("SIGKILL"), 5000).unref();
-  });
 }
 
 // ---------------------------------------------------------------------------------------------

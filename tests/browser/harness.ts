@@ -1,6 +1,7 @@
 // Browser-test harness: the built app (`npm run serve`'s server, scripts/serve.ts) against the test database, the
 // chromium flags for this sandbox, and signing in through the real form.
 import { spawn, spawnSync, type ChildProcess } from "node:child_process";
+import { stopChild } from "../../scripts/lib/child-process";
 import { chromium, type Browser, type Page } from "playwright-core";
 import fs from "node:fs";
 import path from "node:path";
@@ -51,16 +52,6 @@ export async function startAppServer(extraEnv: Record<string, string> = {}): Pro
   }
   child.kill("SIGTERM");
   throw new Error(`the app server did not start on ${url}:\n${output}`);
-}
-
-/** SIGTERM, and the promise of its exit (so a server started next can have the port). */
-function stopChild(child: ChildProcess): Promise<void> {
-  if (child.exitCode !== null || child.signalCode !== null) return Promise.resolve();
-  return new Promise((resolve) => {
-    child.once("exit", () => resolve());
-    child.kill("SIGTERM");
-    setTimeout(() => child.kill("SIGKILL"), 5000).unref();
-  });
 }
 
 export type AppServer = Awaited<ReturnType<typeof startAppServer>>;

@@ -2,6 +2,7 @@
 // loopback port, a sign-in, and a bounded autocannon run whose latencies go into an HDR
 // histogram (autocannon's own result has no p99 of every response, only of per-second samples).
 import { spawn, spawnSync, type ChildProcess } from "node:child_process";
+import { stopChild } from "../../lib/child-process";
 import fs from "node:fs";
 import os from "node:os";
 import path from "node:path";
@@ -65,7 +66,7 @@ export async function startAppServer(extraEnv: Record<string, string> = {}, argv
     stdio: ["ignore", "ignore", "inherit"],
   });
   await waitForPort(`${BENCH_BASE}/sign-in`, child, "the app server");
-  return { child, stop: () => stopChild(child) };
+  return { child, stop: () => stopChild(child, 3000) };
 }
 
 /** A bare node:http server answering every request with the same 20 kB JSON body. */
@@ -76,16 +77,7 @@ export async function startBareServer() {
       .listen(${BENCH_BARE_PORT}, "127.0.0.1");`;
   const child = spawn(process.execPath, ["-e", code], { stdio: ["ignore", "ignore", "inherit"] });
   await waitForPort(`http://127.0.0.1:${BENCH_BARE_PORT}/`, child, "the bare server");
-  return { child, url: `http://127.0.0.1:${BENCH_BARE_PORT}/`, stop: () => stopChild(child) };
-}
-
-function stopChild(child: ChildProcess): Promise<void> {
-  if (child.exitCode !== null) return Promise.resolve();
-  return new Promise((resolve) => {
-    child.once("exit", () => resolve());
-    child.kill("SIGTERM");
-    setTimeout(() => child.kill("SIGKILL"), 3000).unref();
-  });
+  return { child, url: `http://127.0.0.1:${BENCH_BARE_PORT}/`, stop: () => stopChild(child, 3000) };
 }
 
 /** Signs a demo account in through the real form and returns its session cookie. */
