@@ -7,7 +7,6 @@ import { Course } from "../db/models.server";
 import { Bench, LabSession } from "../db/lab-sessions.server";
 import { Group, GroupMember } from "../db/groups.server";
 import { Submission } from "../db/submissions.server";
-import { releaseInfo } from "../submissions/review.server";
 
 export type UploadState = "none" | "received" | "marked" | "refused" | "released";
 
@@ -34,16 +33,21 @@ export async function nextSteps(user: Pick<User, "id">): Promise<NextStep[]> {
     where: { groupId: { [Op.in]: groupIds } },
     include: [{ model: LabSession, as: "session" }, { model: Group, as: "group" }],
   });
+  if (!benches.length) return [];
   const courses = new Map((await Course.findAll({ where: { id: [...new Set(benches.map((b) => b.session!.courseId))] }, attributes: ["id", "code"] })).map((c) => [c.id, c.code]));
+  // every version of these groups' uploads in one query, newest first: the first seen per bench is its latest
+  const versions = await Submission.findAll({
+    where: { [Op.or]: benches.map((b) => ({ groupId: b.groupId!, sessionId: b.sessionId })) },
+    attributes: ["groupId", "sessionId", "version", "status", "submittedAt", "problems"],
+    order: [["version", "DESC"]],
+  });
+  const latestOf = new Map<string, Submission>();
+  for (const v of versions) if (!latestOf.has(`${v.groupId}:${v.sessionId}`)) latestOf.set(`${v.groupId}:${v.sessionId}`, v);
   const steps: NextStep[] = [];
   for (const b of benches) {
     const s = b.session!;
-    const latest = await Submission.findOne({
-      where: { groupId: b.groupId!, sessionId: s.id },
-      attributes: ["version", "status", "submittedAt", "problems"],
-      order: [["version", "DESC"]],
-    });
-    const released = latest ? (await releaseInfo(s.id)).releasedAt !== null : false;
+    const latest = latestOf.get(`${b.groupId}:${s.id}`);
+    const released = s.marksReleasedAt !== null;
     let state: UploadState = "none";
     if (latest) {
       if (latest.status === "refused") state = "refused";
