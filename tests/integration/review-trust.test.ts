@@ -96,8 +96,14 @@ describe("the straight line a group is shown is the one checked", () => {
     // the analysis check recomputed from the shown number gives the stored deviation
     const again = analysisCheck(s.reportedK, page.view.ownLine.k, rubricFrom(p.session.rubric));
     expect(again.deviationPct).toBeCloseTo(s.checks!.analysis.deviationPct, 10);
-    // a student who copies the shown k gets the full analysis band
-    expect(analysisCheck(page.view.ownLine.k, s.checks!.kLine, rubricFrom(p.session.rubric)).band).toBe("full");
+    // a student who copies the shown k into a new upload of the same readings gets the full
+    // analysis band from the marking job (the shown number is the one the check uses)
+    const copied = await submitRun(1, "none", { seed: 21, reportedK: page.view.ownLine.k });
+    await runJobsUntilIdle();
+    const remarked = (await Submission.findByPk(copied))!;
+    expect(remarked.status).toBe("marked");
+    expect(remarked.checks!.kLine).toBe(s.checks!.kLine);
+    expect(remarked.checks!.analysis.band).toBe("full");
     // parts read as marks out of the rubric's share (fixture: 0.6 / 0.4 -> 60 and 40 marks)
     expect(page.outOf).toEqual({ experiment: 60, analysis: 40 });
   });
