@@ -1,6 +1,7 @@
 // `npm run serve` : the production server (scripts/lib/http-server.ts) on the production build.
 // Refuses to start in production without a long SESSION_SECRET and an APP_URL. PORT (3000) and
 // HOST (all addresses) say where it listens; TRUST_PROXY=1 behind a load balancer.
+import "./lib/production-mode";
 import path from "node:path";
 import { pathToFileURL } from "node:url";
 import type { ServerBuild } from "react-router";
@@ -9,8 +10,6 @@ import { logger } from "../app/.server/log.server";
 import { createHttpServer } from "./lib/http-server";
 import { projectRoot } from "./lib/postgres";
 
-// As react-router-serve did: the production build runs in production mode unless told otherwise.
-process.env.NODE_ENV ??= "production";
 const problems = productionConfigProblems();
 if (problems.length) {
   console.error(`Ratebook refuses to start in production:\n- ${problems.join("\n- ")}`);

@@ -33,7 +33,9 @@ export async function startAppServer(extraEnv: Record<string, string> = {}): Pro
     if (build.status !== 0) throw new Error(`react-router build failed:\n${build.stderr}`);
   }
   // LOG_LEVEL=warn: the request log of a whole browser test would drown a failure's output.
-  const env = { ...process.env, ...testEnv, PORT: String(TEST_APP_PORT), HOST: "127.0.0.1", NODE_ENV: "production", SESSION_COOKIE_SECURE: "0", LOG_LEVEL: "warn", ...extraEnv };
+  // NODE_ENV is left to the server, as under `npm start` and `npm run serve` (vitest's "test" is dropped).
+  const { NODE_ENV: _vitestMode, ...inherited } = process.env;
+  const env = { ...inherited, ...testEnv, PORT: String(TEST_APP_PORT), HOST: "127.0.0.1", SESSION_COOKIE_SECURE: "0", LOG_LEVEL: "warn", ...extraEnv };
   const child: ChildProcess = spawn(bin("tsx"), ["scripts/serve.ts"], { cwd: root, env, stdio: ["ignore", "pipe", "pipe"] });
   let output = "";
   child.stdout!.on("data", (c) => (output += c));
