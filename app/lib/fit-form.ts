@@ -1,5 +1,6 @@
 // Turns the "check a data set" form (strings as typed, pasted rows) into an engine fit request,
 // and engine error paths back into places on the form. Pure, so it runs in the browser and in tests.
+import { splitDecimalMessage } from "~/lib/readings/decimal-comma";
 import Papa from "papaparse";
 import { styleNumbers } from "./format";
 
@@ -155,7 +156,8 @@ export function parsePoints(text: string, units: PasteUnits = {}): ParsedPoints 
   const headerCells = layout.header ? rows[first] : null;
   const widths = dataRows.map((r) => r.cells.length);
 
-  // Commas that are both decimal marks and separators cannot be told apart: say so once.
+  // Commas that are both decimal marks and separators cannot be told apart: say so once
+  // (in the same words as an uploaded CSV file, app/lib/readings/decimal-comma.ts).
   const splitDecimals =
     sep === "," &&
     dataRows.length > 0 &&
@@ -163,13 +165,7 @@ export function parsePoints(text: string, units: PasteUnits = {}): ParsedPoints 
       dataRows.every((r) => r.cells.length >= 3 && /^\d+$/.test(r.cells[1]) && /^\d+$/.test(r.cells[2])) ||
       (new Set(widths).size > 1 && Math.max(...widths) > 3));
   if (splitDecimals) {
-    const sample = dataRows[0];
-    out.problems.push({
-      field: "data",
-      message:
-        `The numbers seem to use a decimal comma while commas also separate the columns (line ${sample.line}: "${sample.cells.join(",")}"), so time and value cannot be told apart. ` +
-        "Separate the columns with semicolons or tabs (pasting from a spreadsheet gives tabs), or use a decimal point.",
-    });
+    out.problems.push({ field: "data", message: splitDecimalMessage(dataRows[0], "line") });
     return out;
   }
   if (layout.score === 0 && dataRows.length > SAME_PROBLEM_LINES) {

@@ -91,6 +91,8 @@ describe("refusals are explained, and the file is still kept", () => {
     ["PDF renamed .csv", { bytes: "%PDF-1.7\n1 0 obj\n<<>>\nendobj\n", name: "report.csv" }, /report\.csv is a PDF document/],
     ["no numeric pair", { bytes: "name,comment\na,b\nc,d\ne,f\ng,h\n", name: "words.csv" }, /no pair of numeric columns/],
     ["fewer than 4 rows", { bytes: "t,c\n0,1\n1,0.9\n2,0.8\n", name: "short.csv" }, /only 3 usable row\(s\).*at least 4/],
+    // first-order decay c = 20·exp(-0.05 t) (textbook integrated rate law) written by a decimal-comma spreadsheet as comma-separated text
+    ["decimal comma in a comma file", { bytes: "t / min,CA (mmol/L)\n0,0,20,00\n2,5,17,65\n5,0,15,58\n7,5,13,75\n", name: "comma.csv" }, /comma\.csv: The numbers seem to use a decimal comma while commas also separate the columns \(row 2: "0,0,20,00"\).*semicolons/],
   ];
   for (const [name, file, message] of cases) {
     test(name, async () => {

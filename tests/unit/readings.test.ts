@@ -203,3 +203,31 @@ describe(".xlsx", () => {
     expect(await refusalAsync(readReadingsFile(new Uint8Array([0x50, 0x4b, 3, 4, 9, 9, 9]), "broken.xlsx"))).toMatch(/could not be opened/);
   });
 });
+
+// Common practice, no source: spreadsheets set to a decimal-comma locale write "0,5" for one half;
+// exported as comma-separated text, each number is split in two. Readings computed here from the
+// first-order law c = c0·exp(-k t) (textbook integrated rate law), c0 = 20 mmol/L, k = 0.05 /min.
+describe("a decimal comma in a comma-separated file", () => {
+  const law = (t: number) => 20 * Math.exp(-0.05 * t);
+  const comma = (x: number) => x.toFixed(2).replace(".", ",");
+  const rows = [0, 2.5, 5, 7.5, 10, 12.5].map((t) => `${comma(t)},${comma(law(t))}`);
+  const file = `t / min,CA (mmol/L)\n${rows.join("\n")}\n`;
+
+  test("is refused with the cause, the row and the fix, in the data-set check's words", async () => {
+    const m = refusal(() => readCsv(enc(file), "run.csv"));
+    expect(m).toMatch(/decimal comma while commas also separate the columns \(row 2: "0,00,20,00"\)/);
+    expect(m).toMatch(/semicolons/);
+    expect(await refusalAsync(readReadingsFile(enc(file), "run.csv"))).toBe(m);
+  });
+
+  test("the same readings with semicolons are read as meant", () => {
+    const r = csv(`t / min;CA (mmol/L)\n${[0, 2.5, 5, 7.5, 10, 12.5].map((t) => `${comma(t)};${comma(law(t))}`).join("\n")}\n`);
+    expect(r.points[1][0]).toBeCloseTo(2.5, 10);
+    expect(r.points[1][1]).toBeCloseTo(law(2.5), 2);
+  });
+
+  test("an extra column of whole numbers with points elsewhere is not taken for split decimals", () => {
+    const r = csv("t,c,T\n0,0.02,25\n1,0.018,25\n2,0.016,25\n3,0.015,25\n");
+    expect(r.points).toEqual([[0, 0.02], [1, 0.018], [2, 0.016], [3, 0.015]]);
+  });
+});

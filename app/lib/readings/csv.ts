@@ -3,6 +3,7 @@
 // line ends, blank lines and extra columns. Binary files are recognised and refused first.
 import Papa from "papaparse";
 import type { RawTable } from "./table.ts";
+import { splitDecimalMessage, splitDecimalRow } from "./decimal-comma.ts";
 
 export class Refusal extends Error {
   constructor(message: string) {
@@ -97,7 +98,25 @@ export function readCsv(bytes: Uint8Array, fileName = "the file"): RawTable {
   const parsed = Papa.parse<string[]>(text, { delimiter, skipEmptyLines: false, newline: undefined });
   // Papa gives one record per line (quoted line breaks aside); line numbers follow records.
   const rows = parsed.data.map((cells, i) => ({ rowNumber: i + 1, cells: cells.map((c) => (c.trim() === "" ? null : c)) }));
+  if (delimiter === ",") {
+    const split = splitDecimals(parsed.data);
+    if (split) throw new Refusal(`${fileName}: ${splitDecimalMessage(split, "row")}`);
+  }
   const decimalComma = usesDecimalComma(parsed.data, delimiter);
   const notes = [`Columns separated by ${DELIMITER_NAME[delimiter]}${decimalComma ? ", decimal comma" : ""}.`];
   return { source: "csv", rows, notes, decimalComma };
+}
+
+/**
+ * Numbers split at a decimal comma in a comma-separated file: the header is the last text row
+ * above the first row of whole numbers, the data rows those below it made only of numbers.
+ */
+function splitDecimals(records: string[][]): { line: number; cells: string[] } | null {
+  const rows = records.map((cells, i) => ({ line: i + 1, cells })).filter((r) => r.cells.some((c) => c.trim() !== ""));
+  const isNumber = (c: string) => /^[+-]?(\d+\.?\d*|\.\d+)([eE][+-]?\d+)?$/.test(c.trim());
+  const numeric = (r: { cells: string[] }) => r.cells.filter((c) => c.trim() !== "").every(isNumber);
+  const first = rows.findIndex(numeric);
+  if (first < 0) return null;
+  const header = first > 0 ? rows[first - 1].cells : null;
+  return splitDecimalRow(header, rows.slice(first).filter(numeric));
 }
