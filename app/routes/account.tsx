@@ -11,6 +11,7 @@ import { Button, Field, FormMessage } from "~/components/form";
 import { apiTokensOf, checkTokenRequest, createApiToken, revokeApiToken } from "~/.server/api-tokens.server";
 import { ApiTokensSection } from "~/components/api-tokens-section";
 import { PageTitle } from "~/components/page";
+import { trailFor } from "~/lib/place";
 
 export const meta: Route.MetaFunction = () => [{ title: "Your account · Ratebook" }];
 
@@ -84,7 +85,7 @@ export default function Account({ loaderData, actionData }: Route.ComponentProps
   const others = loaderData.sessions.filter((s) => !s.current).length;
   return (
     <div className="max-w-2xl">
-      <PageTitle sub={`${loaderData.email} · account type: ${loaderData.role}`}>{loaderData.name}</PageTitle>
+      <PageTitle trail={trailFor("Account")} sub={`${loaderData.email} · account type: ${loaderData.role}`}>{loaderData.name}</PageTitle>
       <section aria-labelledby="password-h" className="max-w-lg">
         <h2 id="password-h" className="mb-3 text-xl font-bold">Change your password</h2>
         {actionData?.changed ? <FormMessage tone="info">Your password is changed, and every other session is signed out. Use the new password next time you sign in.</FormMessage> : null}

@@ -9,6 +9,7 @@ import { nextSteps, type NextStep } from "~/.server/dashboard/next-steps.server"
 import { formatDateTime, formatDay } from "~/lib/dates";
 import { groupLabel, upperFirst } from "~/lib/natural-order";
 import { fixed } from "~/lib/planning/format";
+import { trailFor } from "~/lib/place";
 
 export const meta: Route.MetaFunction = () => [{ title: "Dashboard · Ratebook" }];
 
@@ -105,7 +106,7 @@ export default function Dashboard({ loaderData }: Route.ComponentProps) {
   const mayCreate = role === "course-creator" || role === "admin";
   return (
     <>
-      <PageTitle sub={INTRO[role]}>Hello, {name}</PageTitle>
+      <PageTitle trail={trailFor(null)} sub={INTRO[role]}>Hello, {name}</PageTitle>
       {next.length ? <NextSteps steps={next} /> : null}
       {live ? <LivePracticals initial={live} /> : null}
       <section aria-labelledby="courses-h">

@@ -1,7 +1,8 @@
 // Finding the way, walked by clicking from the dashboard in Debian's chromium: a student reaches
 // the upload page in one click from the dashboard and straight from the assignment e-mail's link
 // (read from the test mail sink); an automatic fill shows at once and a save after it keeps every
-// bench's group; taking a group off a bench asks first.
+// bench's group; taking a group off a bench asks first; every page names its place (course >
+// practical > page) and each step of that trail leads back.
 import fs from "node:fs";
 import path from "node:path";
 import { Op } from "sequelize";
@@ -114,5 +115,43 @@ describe("finding the way", () => {
     await student.waitForURL(/\/groups\/\d+\/submissions$/);
     await expect.poll(() => student.getByRole("heading", { name: /^Upload readings: Group 1$/ }).count()).toBe(1);
     await student.close();
+  });
+
+  test("every page shows where it sits, and the trail leads back by clicking", async () => {
+    for (const width of [1280, 390]) {
+      const page = await signedIn("instructor", width);
+      const trail = () => page.getByRole("navigation", { name: "You are here" });
+      const steps = async () => (await trail().getByRole("listitem").allInnerTexts()).map((t) => t.replace("›", "").trim());
+      await expect.poll(steps).toEqual(["Dashboard"]);
+      await page.getByRole("link", { name: "KIN-DEMO" }).first().click();
+      await page.waitForURL(`${server.url}/courses/${courseId}`);
+      await expect.poll(steps).toEqual(["Dashboard", "KIN-DEMO"]);
+
+      // reaction systems: a course page; its trail goes back to the course
+      await page.getByRole("link", { name: "Reaction systems" }).click();
+      await page.waitForURL(`${server.url}/courses/${courseId}/reactions`);
+      await expect.poll(steps).toEqual(["Dashboard", "KIN-DEMO", "Reaction systems"]);
+      await trail().getByRole("link", { name: "KIN-DEMO" }).click();
+      await page.waitForURL(`${server.url}/courses/${courseId}`);
+
+      // the practical's print pages: back to the practical, then to the course, then home
+      await page.getByRole("link", { name: demo.title, exact: true }).click();
+      await page.waitForURL(`${server.url}/sessions/${demo.id}`);
+      await expect.poll(steps).toEqual(["Dashboard", "KIN-DEMO", demo.title]);
+      for (const [link, place, url] of [["Prep list (print)", "Prep list", "/prep"], ["Bench sheets (print)", "Bench sheets", "/sheets"]] as const) {
+        await page.getByRole("link", { name: link }).click();
+        await page.waitForURL(new RegExp(`/sessions/${demo.id}${url}`));
+        await expect.poll(steps).toEqual(["Dashboard", "KIN-DEMO", demo.title, place]);
+        await page.screenshot({ path: path.join(shots, `trail-${url.slice(1)}-${width}.png`) });
+        expect(await page.evaluate(() => document.documentElement.scrollWidth - document.documentElement.clientWidth)).toBe(0);
+        await trail().getByRole("link", { name: demo.title }).click();
+        await page.waitForURL(`${server.url}/sessions/${demo.id}`);
+      }
+      await trail().getByRole("link", { name: "KIN-DEMO" }).click();
+      await page.waitForURL(`${server.url}/courses/${courseId}`);
+      await trail().getByRole("link", { name: "Dashboard" }).click();
+      await page.waitForURL(`${server.url}/dashboard`);
+      await page.close();
+    }
   });
 });

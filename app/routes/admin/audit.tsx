@@ -3,6 +3,7 @@ import { requireUser } from "~/.server/guards.server";
 import { AuditEntry, User } from "~/.server/db/models.server";
 import { PageTitle, TableBox } from "~/components/page";
 import { auditChanges } from "~/lib/audit-text";
+import { trailFor } from "~/lib/place";
 
 export const meta: Route.MetaFunction = () => [{ title: "Audit log · Ratebook" }];
 const PAGE = 200;
@@ -29,7 +30,7 @@ export async function loader({ request }: Route.LoaderArgs) {
 export default function AdminAudit({ loaderData }: Route.ComponentProps) {
   return (
     <>
-      <PageTitle sub={`Who changed what, and when: the latest ${PAGE} entries, newest first (times in UTC).`}>Audit log</PageTitle>
+      <PageTitle trail={trailFor("Audit log")} sub={`Who changed what, and when: the latest ${PAGE} entries, newest first (times in UTC).`}>Audit log</PageTitle>
       <TableBox label="Audit log">
         <table className="w-full border-collapse text-left text-sm">
           <thead>

@@ -6,6 +6,7 @@ import { formId } from "~/.server/ids.server";
 import { queueJobs, retryFailedJob, type QueueJob } from "~/.server/jobs/admin.server";
 import { Button, FormMessage } from "~/components/form";
 import { PageTitle, TableBox } from "~/components/page";
+import { trailFor } from "~/lib/place";
 
 export const meta: Route.MetaFunction = () => [{ title: "Job queue · Ratebook" }];
 
@@ -66,7 +67,7 @@ export default function AdminJobs({ loaderData, actionData }: Route.ComponentPro
   const { waiting, failed } = loaderData;
   return (
     <>
-      <PageTitle sub="Background work (e-mail, marking) that the workers have not finished. Jobs wait here while no worker runs; a failed job has used all its attempts.">Job queue</PageTitle>
+      <PageTitle trail={trailFor("Job queue")} sub="Background work (e-mail, marking) that the workers have not finished. Jobs wait here while no worker runs; a failed job has used all its attempts.">Job queue</PageTitle>
       {actionData ? <FormMessage tone={actionData.ok ? "info" : "error"}>{actionData.message}</FormMessage> : null}
       <h2 className="mt-6 text-xl font-bold">Failed ({failed.length})</h2>
       {failed.length ? <JobTable label="Failed jobs" jobs={failed} retry /> : <p className="text-ink-soft">No failed jobs.</p>}

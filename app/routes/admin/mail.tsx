@@ -3,6 +3,7 @@ import { requireUser } from "~/.server/guards.server";
 import { listSinkMessages } from "~/.server/mail.server";
 import { FormMessage } from "~/components/form";
 import { PageTitle } from "~/components/page";
+import { trailFor } from "~/lib/place";
 
 export const meta: Route.MetaFunction = () => [{ title: "Sent mail · Ratebook" }];
 
@@ -29,7 +30,7 @@ export default function AdminMail({ loaderData }: Route.ComponentProps) {
   const { configured, messages, problem } = loaderData;
   return (
     <>
-      <PageTitle sub="Messages caught by the local mail sink, newest first. In production, mail goes to the SMTP server and is not listed here.">Sent mail</PageTitle>
+      <PageTitle trail={trailFor("Sent mail")} sub="Messages caught by the local mail sink, newest first. In production, mail goes to the SMTP server and is not listed here.">Sent mail</PageTitle>
       {!configured ? <FormMessage tone="info">Mail goes to a real SMTP server (SMTP_URL is set), so there is nothing to show here.</FormMessage> : null}
       {problem ? <FormMessage tone="error">{problem}</FormMessage> : null}
       {configured && !problem && messages.length === 0 ? <p className="text-ink-soft">No messages yet. Invite someone to a course to see one here.</p> : null}

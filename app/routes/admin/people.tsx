@@ -8,6 +8,7 @@ import { formId } from "~/.server/ids.server";
 import { FormMessage } from "~/components/form";
 import { PageTitle, TableBox } from "~/components/page";
 import { RoleSelect } from "~/components/role-select";
+import { trailFor } from "~/lib/place";
 
 export const meta: Route.MetaFunction = () => [{ title: "People · Ratebook" }];
 
@@ -39,7 +40,7 @@ export async function action({ request }: Route.ActionArgs) {
 export default function AdminPeople({ loaderData, actionData }: Route.ComponentProps) {
   return (
     <>
-      <PageTitle sub="Everyone with a Ratebook account. The account type says what a person may do outside a course (inside a course, their course role decides). Changes are written to the audit log; taking an account type away signs the person out.">
+      <PageTitle trail={trailFor("People")} sub="Everyone with a Ratebook account. The account type says what a person may do outside a course (inside a course, their course role decides). Changes are written to the audit log; taking an account type away signs the person out.">
         People
       </PageTitle>
       {actionData?.notice ? <FormMessage tone="info">{actionData.notice}</FormMessage> : null}

@@ -11,6 +11,7 @@ import { PageTitle, TableBox } from "~/components/page";
 import { RoleSelect } from "~/components/role-select";
 import { courseSessions } from "~/.server/planning/sessions.server";
 import { CoursePlanning } from "~/components/planning/course-planning";
+import { trailFor } from "~/lib/place";
 
 export const meta: Route.MetaFunction = ({ data }) => [{ title: `${data?.course.code ?? "Course"} · Ratebook` }];
 
@@ -99,7 +100,7 @@ export default function CoursePage({ loaderData, actionData }: Route.ComponentPr
   const pageProblem = actionData && actionData.intent !== "invite" && actionData.intent !== "change-role" ? actionData.errors.form : undefined;
   return (
     <>
-      <PageTitle sub={`${course.title}${course.term ? ` · ${course.term}` : ""} · ${roleText}`}>
+      <PageTitle trail={trailFor(null, course)} sub={`${course.title}${course.term ? ` · ${course.term}` : ""} · ${roleText}`}>
         {course.code}
         {course.archived ? <span className="ml-3 align-middle rounded border border-ink-soft px-2 py-0.5 text-base font-normal text-ink-soft">archived</span> : null}
       </PageTitle>

@@ -9,6 +9,7 @@ import { courseGradebookPage, saveCourseGradeSettings } from "~/.server/gradeboo
 import { PageTitle } from "~/components/page";
 import { CourseGradebookTable } from "~/components/gradebook/course-table";
 import { GradeSettings } from "~/components/gradebook/grade-settings";
+import { trailFor } from "~/lib/place";
 
 export const meta: Route.MetaFunction = ({ data }) => [{ title: `Gradebook${data ? `: ${data.course.code}` : ""} · Ratebook` }];
 
@@ -35,7 +36,7 @@ export default function CourseGradebook({ loaderData, actionData }: Route.Compon
   const missingStudents = rows.filter((r) => r.missing > 0).length;
   return (
     <>
-      <PageTitle sub={<><Link className="underline" to={`/courses/${course.id}`}>{course.code}</Link> · {course.title}{course.term ? ` · ${course.term}` : ""}</>}>
+      <PageTitle trail={trailFor("Gradebook", course)} sub={<>{course.title}{course.term ? ` · ${course.term}` : ""}</>}>
         Gradebook: {course.code}
       </PageTitle>
       <nav aria-label="Downloads" className="mb-4 flex flex-wrap gap-2">

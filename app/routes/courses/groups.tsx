@@ -8,6 +8,7 @@ import { readForm } from "~/.server/body.server";
 import { courseGroups, createGroup, deleteGroup, formGroups, moveStudent, renameGroup } from "~/.server/planning/groups.server";
 import { Button, Field, FormMessage } from "~/components/form";
 import { PageTitle } from "~/components/page";
+import { trailFor } from "~/lib/place";
 
 export const meta: Route.MetaFunction = () => [{ title: "Groups · Ratebook" }];
 
@@ -46,7 +47,7 @@ export default function Groups({ loaderData, actionData }: Route.ComponentProps)
   const groupOf = new Map(groups.flatMap((g) => g.members.map((m) => [m.userId, g.id] as const)));
   return (
     <>
-      <PageTitle sub={<><Link className="underline" to={`/courses/${course.id}`}>{course.code}</Link> · {groups.length} groups, {ungrouped.length} students in none</>}>Groups</PageTitle>
+      <PageTitle trail={trailFor("Groups", course)} sub={<>{groups.length} groups, {ungrouped.length} students in none</>}>Groups</PageTitle>
       {actionData?.ok ? <FormMessage tone="info">{actionData.message}</FormMessage> : null}
       {actionData && !actionData.ok && actionData.field === "form" ? <FormMessage tone="error">{actionData.message}</FormMessage> : null}
       {!groups.length && !students.length ? (

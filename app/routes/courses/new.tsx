@@ -5,6 +5,7 @@ import { createCourse } from "~/.server/courses.server";
 import { Button, Field } from "~/components/form";
 import { PageTitle } from "~/components/page";
 import { readForm } from "~/.server/body.server";
+import { trailFor } from "~/lib/place";
 
 export const meta: Route.MetaFunction = () => [{ title: "New course · Ratebook" }];
 const STAFF = ["admin", "course-creator"] as const;
@@ -29,7 +30,7 @@ export default function CourseNew({ actionData }: Route.ComponentProps) {
   const values = actionData?.values ?? {};
   return (
     <div className="max-w-lg">
-      <PageTitle sub="You become its first instructor.">New course</PageTitle>
+      <PageTitle trail={trailFor("New course")} sub="You become its first instructor.">New course</PageTitle>
       <Form method="post" noValidate>
         <Field label="Code" name="code" defaultValue={values.code} error={errors.code} hint="Short, e.g. KIN-201" />
         <Field label="Title" name="title" defaultValue={values.title} error={errors.title} />

@@ -8,6 +8,7 @@ import { fieldError, typed, type FormResult } from "~/lib/form-result";
 import { PICTOGRAMS } from "~/lib/planning/hazards";
 import { Button, Field, FormMessage, SelectField } from "~/components/form";
 import { PageTitle } from "~/components/page";
+import { trailFor } from "~/lib/place";
 
 export const meta: Route.MetaFunction = () => [{ title: "Reaction systems · Ratebook" }];
 
@@ -77,7 +78,7 @@ export default function Reactions({ loaderData, actionData }: Route.ComponentPro
   const e = (n: string) => fieldError(result, n);
   return (
     <>
-      <PageTitle sub={`${course.code} · the reactions this course's practicals can use`}>Reaction systems</PageTitle>
+      <PageTitle trail={trailFor("Reaction systems", course)} sub={`${course.code} · the reactions this course's practicals can use`}>Reaction systems</PageTitle>
       {actionData?.saved ? <FormMessage tone="info">{actionData.saved} added to the library.</FormMessage> : null}
       <div className="grid gap-8 lg:grid-cols-[3fr_2fr]">
         <section aria-labelledby="lib-h">

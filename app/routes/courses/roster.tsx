@@ -10,6 +10,7 @@ import { ROSTER_MAX_BYTES, RosterFileError, importRoster, previewRoster, readTab
 import { inviteToCourse } from "~/.server/people.server";
 import { Button, Field, FormMessage } from "~/components/form";
 import { PageTitle, TableBox } from "~/components/page";
+import { trailFor } from "~/lib/place";
 
 export const meta: Route.MetaFunction = () => [{ title: "Roster · Ratebook" }];
 
@@ -109,7 +110,7 @@ export default function Roster({ loaderData, actionData }: Route.ComponentProps)
   const demo = actionData?.kind === "demonstrator" ? actionData : null;
   return (
     <>
-      <PageTitle sub={<><Link className="underline" to={`/courses/${course.id}`}>{course.code}</Link> · students from a CSV or .xlsx file</>}>Roster</PageTitle>
+      <PageTitle trail={trailFor("Roster", course)} sub={<>students from a CSV or .xlsx file</>}>Roster</PageTitle>
       {actionData?.kind === "error" ? <FormMessage tone="error">{actionData.message}</FormMessage> : null}
       {actionData?.kind === "saved" ? <FormMessage tone="info">{actionData.message} <Link className="underline" to={`/courses/${course.id}/groups`}>See the groups</Link>.</FormMessage> : null}
       {actionData?.kind === "error" && actionData.rows ? <PreviewTable rows={actionData.rows} /> : null}

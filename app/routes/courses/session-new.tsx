@@ -24,6 +24,7 @@ import { minutes, mL } from "~/lib/planning/format";
 import { Button, Field, FormMessage } from "~/components/form";
 import { PageTitle, TableBox } from "~/components/page";
 import { CurveThumb } from "~/components/planning/curve-thumb";
+import { trailFor } from "~/lib/place";
 
 export const meta: Route.MetaFunction = () => [{ title: "Design a practical · Ratebook" }];
 
@@ -144,7 +145,7 @@ export default function DesignPractical({ loaderData, actionData }: Route.Compon
   if (!systems.length) {
     return (
       <>
-        <PageTitle sub={course.code}>Design a practical</PageTitle>
+        <PageTitle trail={trailFor("Design a practical", course)} sub={course.code}>Design a practical</PageTitle>
         <FormMessage tone="info">
           This course has no reaction system yet. <a className="underline" href={`/courses/${course.id}/reactions`}>Add one to the library</a> first.
         </FormMessage>
@@ -154,7 +155,7 @@ export default function DesignPractical({ loaderData, actionData }: Route.Compon
 
   return (
     <>
-      <PageTitle sub={`${course.code} · one feed and temperature per bench, checked against the slot`}>Design a practical</PageTitle>
+      <PageTitle trail={trailFor("Design a practical", course)} sub={`${course.code} · one feed and temperature per bench, checked against the slot`}>Design a practical</PageTitle>
       <Form method="post" noValidate ref={formRef} onChange={recheck} aria-label="Practical and benches">
         <input type="hidden" name="proposal" value={proposal} />
         <div className="grid gap-6 lg:grid-cols-2">

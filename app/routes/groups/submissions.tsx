@@ -21,6 +21,8 @@ import { sig, unitText, withInterval } from "~/lib/format";
 import { lawFromOrders, rateConstantUnit, type FitResult } from "~/lib/kinetics";
 import { groupLabel, upperFirst } from "~/lib/natural-order";
 import { formatDateTime } from "~/lib/dates";
+import { trailFor } from "~/lib/place";
+import { coursePlace, practicalPlace } from "~/.server/place.server";
 
 export const meta: Route.MetaFunction = () => [{ title: "Upload readings · Ratebook" }];
 
@@ -43,6 +45,7 @@ export async function loader({ request, params }: Route.LoaderArgs) {
     const versions = await groupSubmissions(groupId, viewer, practical?.session.id);
     return {
       group: { id: group.id, name: group.name },
+      place: practical ? await practicalPlace(practical.session.id) : await coursePlace(group.courseId),
       staff: viewer === "staff",
       maxBytes: MAX_UPLOAD_BYTES,
       practical: practical
@@ -143,7 +146,7 @@ export default function GroupSubmissions({ loaderData, actionData }: Route.Compo
   if (!practical) {
     return (
       <>
-        <PageTitle>Upload readings</PageTitle>
+        <PageTitle trail={trailFor("Upload readings", loaderData.place.course)}>Upload readings</PageTitle>
         <p className="rounded border border-dashed border-rule p-6">{upperFirst(groupLabel(group.name))} has no bench in a practical yet. Your instructor assigns benches; come back after that. <Link className="text-accent underline" to="/dashboard">Back to the dashboard</Link></p>
       </>
     );
@@ -154,7 +157,7 @@ export default function GroupSubmissions({ loaderData, actionData }: Route.Compo
   const sending = navigation.state === "submitting";
   return (
     <>
-      <PageTitle sub={<>{practical.title} · {practical.date} · bench {practical.bench}: CA0 {sig(practical.CA0)} mol/L, CB0 {sig(practical.CB0)} mol/L, {sig(practical.temperatureC, 3)} °C</>}>
+      <PageTitle trail={trailFor("Upload readings", loaderData.place.course, loaderData.place.practical)} sub={<>{practical.title} · {practical.date} · bench {practical.bench}: CA0 {sig(practical.CA0)} mol/L, CB0 {sig(practical.CB0)} mol/L, {sig(practical.temperatureC, 3)} °C</>}>
         Upload readings: {group.name}
       </PageTitle>
       {deadline ? <p className="mb-4 text-sm">Deadline {formatDateTime(deadline)}. Files sent later are accepted and marked late.</p> : null}

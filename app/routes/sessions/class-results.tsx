@@ -15,6 +15,7 @@ import { XYPlot } from "~/components/xy-plot";
 import { MINUS, sig, withInterval } from "~/lib/format";
 import { fieldError, typed, type FormResult } from "~/lib/form-result";
 import { REASON_MAX } from "~/lib/gradebook/class-results";
+import { trailFor } from "~/lib/place";
 
 export const meta: Route.MetaFunction = ({ data }) => [{ title: `Class results${data ? `: ${data.session.title}` : ""} · Ratebook` }];
 
@@ -66,7 +67,7 @@ export default function ClassResultsPage({ loaderData, actionData }: Route.Compo
   const result = actionData?.result;
   return (
     <>
-      <PageTitle sub={<><Link className="underline" to={`/courses/${session.courseId}`}>{session.courseCode}</Link> · {session.date} · {reaction.name} · {counts.inFit} of {benches.length} benches in the fit{counts.excluded ? `, ${counts.excluded} left out` : ""}</>}>
+      <PageTitle trail={trailFor("Class results", { id: session.courseId, code: session.courseCode }, session)} sub={<>{session.date} · {reaction.name} · {counts.inFit} of {benches.length} benches in the fit{counts.excluded ? `, ${counts.excluded} left out` : ""}</>}>
         Class results: {session.title}
       </PageTitle>
       <nav aria-label="This practical" className="mb-6 flex flex-wrap gap-3">

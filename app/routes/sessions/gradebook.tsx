@@ -8,6 +8,7 @@ import { PageTitle } from "~/components/page";
 import { SessionGradebookTable } from "~/components/gradebook/session-table";
 import { gradebookSummary } from "~/components/gradebook/summary";
 import { sig } from "~/lib/format";
+import { trailFor } from "~/lib/place";
 
 export const meta: Route.MetaFunction = ({ data }) => [{ title: `Gradebook${data ? `: ${data.session.title}` : ""} · Ratebook` }];
 
@@ -24,8 +25,8 @@ export default function SessionGradebook({ loaderData }: Route.ComponentProps) {
   const { session, reaction, rows, kUnit, view } = loaderData;
   return (
     <>
-      <PageTitle
-        sub={<><Link className="underline" to={`/courses/${session.courseId}`}>{session.courseCode}</Link> · {session.date} · {reaction.name} · {session.marksReleasedAt ? "marks released" : "marks not released"}</>}
+      <PageTitle trail={trailFor("Gradebook", { id: session.courseId, code: session.courseCode }, session)}
+        sub={<>{session.date} · {reaction.name} · {session.marksReleasedAt ? "marks released" : "marks not released"}</>}
       >
         Gradebook: {session.title}
       </PageTitle>

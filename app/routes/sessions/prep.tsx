@@ -4,6 +4,8 @@ import { requireUser } from "~/.server/guards.server";
 import { pathId } from "~/.server/ids.server";
 import { sessionAccess } from "~/.server/planning/sessions.server";
 import { paperOf, prepList } from "~/.server/planning/sheets.server";
+import { Breadcrumb } from "~/components/page";
+import { trailFor } from "~/lib/place";
 import { HazardCautions, PrintBar } from "~/components/planning/print";
 import { fixed, mL } from "~/lib/planning/format";
 
@@ -25,6 +27,7 @@ export default function Prep({ loaderData }: Route.ComponentProps) {
   const litres = (ml: number) => (ml >= 1000 ? `${fixed(ml / 1000, 2)} L` : mL(ml));
   return (
     <div className={`paper-${paper}`}>
+      <Breadcrumb trail={trailFor("Prep list", course, session)} />
       <PrintBar
         paper={paper}
         base={`/sessions/${session.id}/prep?margin=${marginPct}`}

@@ -30,6 +30,9 @@ import { ProblemList, RunPlotsView, StatusBadge } from "~/components/run-plots";
 import { sig, unitText, withInterval } from "~/lib/format";
 import { methodText } from "~/lib/marking/feedback";
 import { data } from "react-router";
+import { trailFor } from "~/lib/place";
+import { groupLabel, upperFirst } from "~/lib/natural-order";
+import { practicalPlace } from "~/.server/place.server";
 
 export const meta: Route.MetaFunction = ({ data }) => [{ title: `${data ? `${data.group.name} v${data.view.version} · ` : ""}Review · Ratebook` }];
 
@@ -57,6 +60,7 @@ export async function loader({ request, params }: Route.LoaderArgs) {
       flags: withFileRows(view.flags, fittedRowNumbers(submission)),
       feedRatio: bench ? feedRatio(bench.CA0, bench.CB0, nu) : null,
       session: { id: session.id, title: session.title },
+      place: await practicalPlace(session.id),
       group: { id: group.id, name: group.name },
       bench: bench ? { label: bench.label, CA0: bench.CA0, CB0: bench.CB0, temperatureC: bench.temperatureC } : null,
       view,
@@ -129,7 +133,7 @@ export default function ReviewSubmission({ loaderData, actionData }: Route.Compo
         {around.nextFlagged ? <Link className="rounded bg-accent px-3 py-1 font-bold text-accent-ink" to={`/sessions/${session.id}/review/${around.nextFlagged.id}`}>Next flagged ({around.nextFlagged.group}) →</Link> : <span className="rounded border border-rule px-3 py-1 text-ink-soft">No other flagged version</span>}
         <span className="text-ink-soft">{around.position} of {around.of} in the queue</span>
       </nav>
-      <PageTitle sub={bench ? <>Bench {bench.label}: CA0 {sig(bench.CA0)} mol/L, CB0 {sig(bench.CB0)} mol/L, {FEED_RATIO_HEADER} = {sig(loaderData.feedRatio, 3)}, {sig(bench.temperatureC, 3)} °C</> : null}>
+      <PageTitle trail={trailFor(`${upperFirst(groupLabel(loaderData.group.name))}, version ${loaderData.view.version}`, loaderData.place.course, loaderData.place.practical, [{ label: "Review", to: `/sessions/${loaderData.session.id}/review` }])} sub={bench ? <>Bench {bench.label}: CA0 {sig(bench.CA0)} mol/L, CB0 {sig(bench.CB0)} mol/L, {FEED_RATIO_HEADER} = {sig(loaderData.feedRatio, 3)}, {sig(bench.temperatureC, 3)} °C</> : null}>
         {group.name}, version {view.version}
       </PageTitle>
       <p className="mb-4 flex flex-wrap items-center gap-3"><StatusBadge status={view.status} late={view.late} /> <span>{{ flagged: "⚠ flagged", "to-check": "◌ to check", checked: "✓ checked" }[tab]}</span></p>

@@ -13,6 +13,8 @@ import { PageTitle } from "~/components/page";
 import { FormMessage } from "~/components/form";
 import { StatusBadge } from "~/components/run-plots";
 import { sig } from "~/lib/format";
+import { trailFor } from "~/lib/place";
+import { practicalPlace } from "~/.server/place.server";
 
 export const meta: Route.MetaFunction = ({ data }) => [{ title: `Review${data ? `: ${data.session.title}` : ""} · Ratebook` }];
 
@@ -32,6 +34,7 @@ export async function loader({ request, params }: Route.LoaderArgs) {
     const release = await releaseInfo(session.id);
     return {
       session: { id: session.id, title: session.title, date: session.date },
+      place: await practicalPlace(session.id),
       tab: TABS.some((t) => t.id === tab) ? tab : "all",
       rows,
       counts,
@@ -68,7 +71,7 @@ export default function Review({ loaderData, actionData }: Route.ComponentProps)
   const unchecked = rows.filter((r) => r.latest && r.latest.tab !== "checked");
   return (
     <>
-      <PageTitle sub={`${session.date} · ${rows.length} ${rows.length === 1 ? "group" : "groups"} at a bench · ${counts.none} without a submission`}>Review: {session.title}</PageTitle>
+      <PageTitle trail={trailFor("Review", loaderData.place.course, loaderData.place.practical)} sub={`${session.date} · ${rows.length} ${rows.length === 1 ? "group" : "groups"} at a bench · ${counts.none} without a submission`}>Review: {session.title}</PageTitle>
       <nav aria-label="This practical" className="mb-4 flex flex-wrap gap-3">
         <Link className="rounded border border-ink-soft px-3 py-1 hover:bg-accent-soft" to={`/sessions/${session.id}`}>Practical</Link>
         <Link className="rounded border border-ink-soft px-3 py-1 hover:bg-accent-soft" to={`/sessions/${session.id}/class-results`}>Class results</Link>

@@ -13,6 +13,7 @@ import { naturalSort } from "~/lib/natural-order";
 import { fieldError, typed, type FormResult } from "~/lib/form-result";
 import { Button, Field, FormMessage } from "~/components/form";
 import { PageTitle, TableBox } from "~/components/page";
+import { trailFor } from "~/lib/place";
 
 export const meta: Route.MetaFunction = ({ data }) => [{ title: `${data?.view.title ?? "Practical"} · Ratebook` }];
 
@@ -84,7 +85,7 @@ export default function PracticalPage({ loaderData, actionData }: Route.Componen
   const isInstructor = role === "instructor";
   return (
     <>
-      <PageTitle sub={<><Link className="underline" to={`/courses/${course.id}`}>{course.code}</Link> · {view.date} · {view.slotMinutes} min slot, {view.setupMinutes} min set-up · {view.reaction.name} · status: {view.status}</>}>
+      <PageTitle trail={trailFor(null, course, view)} sub={<>{view.date} · {view.slotMinutes} min slot, {view.setupMinutes} min set-up · {view.reaction.name} · status: {view.status}</>}>
         {view.title}
       </PageTitle>
       {actionData ? <FormMessage tone={actionData.tone}>{actionData.message}</FormMessage> : null}

@@ -3,6 +3,8 @@ import { requireUser } from "~/.server/guards.server";
 import { pathId } from "~/.server/ids.server";
 import { sessionAccess } from "~/.server/planning/sessions.server";
 import { allSheets, paperOf } from "~/.server/planning/sheets.server";
+import { Breadcrumb } from "~/components/page";
+import { trailFor } from "~/lib/place";
 import { BenchSheet, PrintBar } from "~/components/planning/print";
 
 export const meta: Route.MetaFunction = ({ data }) => [{ title: `Bench sheets · ${data?.session.title ?? ""} · Ratebook` }];
@@ -18,6 +20,7 @@ export default function Sheets({ loaderData }: Route.ComponentProps) {
   const { sheets, paper, ...d } = loaderData;
   return (
     <div className={`paper-${paper}`}>
+      <Breadcrumb trail={trailFor("Bench sheets", d.course, d.session)} />
       <h1 className="no-print mb-3 text-3xl font-bold">Bench sheets: {d.session.title}</h1>
       <PrintBar paper={paper} base={`/sessions/${d.session.id}/sheets`} />
       {sheets.map((s) => <BenchSheet key={s.benchId} d={d} sheet={s} />)}

@@ -20,6 +20,8 @@ import { marksOutOf, partText } from "~/lib/marking/rubric-view";
 import { rubricFrom } from "~/lib/marking/rubric";
 import { LabSession } from "~/.server/db/lab-sessions.server";
 import { groupLabel, upperFirst } from "~/lib/natural-order";
+import { trailFor } from "~/lib/place";
+import { practicalPlace } from "~/.server/place.server";
 
 export const meta: Route.MetaFunction = ({ data }) => [{ title: `${data ? `Version ${data.view.version} · ` : ""}Submission · Ratebook` }];
 
@@ -35,6 +37,7 @@ export async function loader({ request, params }: Route.LoaderArgs) {
       view,
       outOf: marksOutOf(rubricFrom(practical?.rubric)),
       group: { id: group.id, name: group.name },
+      place: await practicalPlace(submission.sessionId),
       staff: viewer === "staff",
       size: file?.size ?? 0,
       plots: plotsOf(submission, view.fit),
@@ -50,7 +53,7 @@ export default function SubmissionPage({ loaderData }: Route.ComponentProps) {
   return (
     <>
       <p className="mb-2 text-sm"><Link className="text-accent underline" to={`/groups/${group.id}/submissions`}>← {group.name}: uploads</Link></p>
-      <PageTitle sub={<>{upperFirst(groupLabel(group.name))} · sent {new Date(view.submittedAt).toLocaleString("en-GB", { timeZone: "UTC" })} UTC · {view.originalName} ({sig(size / 1024, 3)} kB)</>}>
+      <PageTitle trail={trailFor(`Version ${view.version}`, loaderData.place.course, loaderData.place.practical, [{ label: `${upperFirst(groupLabel(group.name))}: uploads`, to: `/groups/${group.id}/submissions?session=${view.sessionId}` }])} sub={<>{upperFirst(groupLabel(group.name))} · sent {new Date(view.submittedAt).toLocaleString("en-GB", { timeZone: "UTC" })} UTC · {view.originalName} ({sig(size / 1024, 3)} kB)</>}>
         {view.status === "refused" ? `Version ${view.version}: not accepted` : showMark && view.mark !== null ? `Version ${view.version}: feedback` : `Received, version ${view.version}`}
       </PageTitle>
       <p className="mb-4"><StatusBadge status={view.status} late={view.late} /></p>

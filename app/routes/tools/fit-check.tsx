@@ -9,6 +9,7 @@ import type { FitResult } from "~/lib/kinetics";
 import { Button, Field, FormMessage, SelectField } from "~/components/form";
 import { PageTitle } from "~/components/page";
 import { FitReport } from "~/components/fit-report";
+import { trailFor } from "~/lib/place";
 
 export const meta: Route.MetaFunction = () => [{ title: "Check a data set · Ratebook" }];
 
@@ -53,7 +54,7 @@ export default function FitCheck() {
 
   return (
     <>
-      <PageTitle sub="Fit one run's readings with the rate law its feed calls for, and compare k with the reference at its temperature. Nothing is stored.">
+      <PageTitle trail={trailFor("Check a data set")} sub="Fit one run's readings with the rate law its feed calls for, and compare k with the reference at its temperature. Nothing is stored.">
         Check a data set
       </PageTitle>
       <p className="mb-4">
