@@ -2,17 +2,11 @@
 // flags with the pasted lines they concern, the order comparison and two plots.
 import type { FitResult } from "~/lib/kinetics";
 import type { MeasuredKind } from "~/lib/fit-form";
-import { distinctDigits, sig, styleNumbers, unitText, withInterval } from "~/lib/format";
+import { distinctDigits, modelText, sig, styleNumbers, unitText, withInterval } from "~/lib/format";
 import { XYPlot } from "./xy-plot";
 import { TableBox } from "./page";
 import { FLAG_TITLE } from "~/lib/marking/flag-titles";
 
-const MODEL_TEXT: Record<string, string> = {
-  "first-order": "first order in A",
-  "second-order-A": "second order in A",
-  "second-order-AB-stoichiometric": "first order in A and B, stoichiometric feed",
-  "second-order-AB-unequal": "first order in A and B, unequal feed",
-};
 
 function measuredLabel(kind: MeasuredKind, concentrationUnit: string) {
   switch (kind) {
@@ -94,7 +88,7 @@ export function FitReport({ result, kind, points, lines }: Props) {
     <section aria-labelledby="result-h" className="mt-8 rounded border border-rule bg-white p-4">
       <h2 id="result-h" className="text-2xl font-bold">Result</h2>
       <p className="mt-1 text-ink-soft">
-        Model: <strong className="text-ink">{MODEL_TEXT[result.model] ?? result.model}</strong>; straight line {formulaText(result.line.form)} against t.
+        Model: <strong className="text-ink">{modelText(result.model)}</strong>; straight line {formulaText(result.line.form)} against t.
         k is defined on A: −dCA/dt = k·CA{result.model.startsWith("second-order-AB") ? "·CB" : result.model === "second-order-A" ? "²" : ""}. Limiting reagent {result.limitingReagent}.
       </p>
       {/* A list rather than a table: on a phone each value goes under its name instead of squeezing beside it. */}
@@ -149,7 +143,7 @@ export function FitReport({ result, kind, points, lines }: Props) {
             <tbody>
               {result.orderComparison.laws.map((l) => (
                 <tr key={l.model} className="border-b border-rule">
-                  <td className="py-1 pr-6">{MODEL_TEXT[l.model] ?? l.model}{l.model === result.orderComparison!.best ? <strong> (best)</strong> : ""}</td>
+                  <td className="py-1 pr-6">{modelText(l.model)}{l.model === result.orderComparison!.best ? <strong> (best)</strong> : ""}</td>
                   <td className="num py-1 pr-6">{sig(l.k)} {unitText(l.kUnit)}</td>
                   <td className="num py-1 pr-6">{sig(l.residualStdDev, 3)}</td>
                   <td className="py-1">{l.curved ? "yes" : "no"}</td>

@@ -60,3 +60,21 @@ export function styleNumbers(text: string): string {
     .replace(/(^|[\s(=:,[])-(?=\d|\.\d)/g, `$1${MINUS}`)
     .replace(/(\w|\))\s?\*\s?(?=\w|\()/g, "$1·");
 }
+
+const MODEL_TEXT: Record<string, string> = {
+  "first-order": "first order in A",
+  "second-order-A": "second order in A",
+  "second-order-AB": "first order in A and B",
+  "second-order-AB-stoichiometric": "first order in A and B, stoichiometric feed",
+  "second-order-AB-unequal": "first order in A and B, unequal feed",
+};
+
+/** A fitted model's key in words for staff and students ("second-order-A" -> "second order in A"). */
+export function modelText(model: string): string {
+  return MODEL_TEXT[model] ?? model.replace(/-/g, " ");
+}
+
+/** An account type's key in words ("course-creator" -> "course creator"). */
+export function accountTypeText(role: string): string {
+  return role.replace(/-/g, " ");
+}

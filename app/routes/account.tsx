@@ -12,6 +12,7 @@ import { apiTokensOf, checkTokenRequest, createApiToken, revokeApiToken } from "
 import { ApiTokensSection } from "~/components/api-tokens-section";
 import { PageTitle } from "~/components/page";
 import { trailFor } from "~/lib/place";
+import { accountTypeText } from "~/lib/format";
 
 export const meta: Route.MetaFunction = () => [{ title: "Your account · Ratebook" }];
 
@@ -85,7 +86,7 @@ export default function Account({ loaderData, actionData }: Route.ComponentProps
   const others = loaderData.sessions.filter((s) => !s.current).length;
   return (
     <div className="max-w-2xl">
-      <PageTitle trail={trailFor("Account")} sub={`${loaderData.email} · account type: ${loaderData.role}`}>{loaderData.name}</PageTitle>
+      <PageTitle trail={trailFor("Account")} sub={`${loaderData.email} · account type: ${accountTypeText(loaderData.role)}`}>{loaderData.name}</PageTitle>
       <section aria-labelledby="password-h" className="max-w-lg">
         <h2 id="password-h" className="mb-3 text-xl font-bold">Change your password</h2>
         {actionData?.changed ? <FormMessage tone="info">Your password is changed, and every other session is signed out. Use the new password next time you sign in.</FormMessage> : null}

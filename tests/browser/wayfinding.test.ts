@@ -14,6 +14,7 @@ import { Bench, LabSession } from "~/.server/db/lab-sessions.server";
 import { runJobsUntilIdle } from "~/.server/jobs/worker.server";
 import { closeSequelize } from "~/.server/db/sequelize.server";
 import { mailTo } from "../integration/helpers";
+import { doubledWords } from "~/lib/words";
 
 const shots = path.resolve(import.meta.dirname, "..", "..", "test-results");
 let server: AppServer;
@@ -122,6 +123,15 @@ describe("finding the way", () => {
       const page = await signedIn("instructor", width);
       const trail = () => page.getByRole("navigation", { name: "You are here" });
       const steps = async () => (await trail().getByRole("listitem").allInnerTexts()).map((t) => t.replace("›", "").trim());
+      // headings and column names on the page now shown: no word or unit said twice in a row
+      const doubled: string[] = [];
+      let labels = 0;
+      const checkWords = async () => {
+        for (const label of await page.locator("h1, h2, h3, th").allInnerTexts()) {
+          labels++;
+          if (doubledWords(label).length) doubled.push(`${page.url()} (${width} px): "${label}"`);
+        }
+      };
       await expect.poll(steps).toEqual(["Dashboard"]);
       await page.getByRole("link", { name: "KIN-DEMO" }).first().click();
       await page.waitForURL(`${server.url}/courses/${courseId}`);
@@ -131,6 +141,7 @@ describe("finding the way", () => {
       await page.getByRole("link", { name: "Reaction systems" }).click();
       await page.waitForURL(`${server.url}/courses/${courseId}/reactions`);
       await expect.poll(steps).toEqual(["Dashboard", "KIN-DEMO", "Reaction systems"]);
+      await checkWords();
       await trail().getByRole("link", { name: "KIN-DEMO" }).click();
       await page.waitForURL(`${server.url}/courses/${courseId}`);
 
@@ -138,10 +149,12 @@ describe("finding the way", () => {
       await page.getByRole("link", { name: demo.title, exact: true }).click();
       await page.waitForURL(`${server.url}/sessions/${demo.id}`);
       await expect.poll(steps).toEqual(["Dashboard", "KIN-DEMO", demo.title]);
+      await checkWords();
       for (const [link, place, url] of [["Prep list (print)", "Prep list", "/prep"], ["Bench sheets (print)", "Bench sheets", "/sheets"]] as const) {
         await page.getByRole("link", { name: link }).click();
         await page.waitForURL(new RegExp(`/sessions/${demo.id}${url}`));
         await expect.poll(steps).toEqual(["Dashboard", "KIN-DEMO", demo.title, place]);
+        await checkWords();
         await page.screenshot({ path: path.join(shots, `trail-${url.slice(1)}-${width}.png`) });
         expect(await page.evaluate(() => document.documentElement.scrollWidth - document.documentElement.clientWidth)).toBe(0);
         await trail().getByRole("link", { name: demo.title }).click();
@@ -149,8 +162,12 @@ describe("finding the way", () => {
       }
       await trail().getByRole("link", { name: "KIN-DEMO" }).click();
       await page.waitForURL(`${server.url}/courses/${courseId}`);
+      await checkWords();
       await trail().getByRole("link", { name: "Dashboard" }).click();
       await page.waitForURL(`${server.url}/dashboard`);
+      await checkWords();
+      expect(labels).toBeGreaterThan(20);
+      expect(doubled).toEqual([]);
       await page.close();
     }
   });

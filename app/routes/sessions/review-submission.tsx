@@ -27,7 +27,7 @@ import { Bench } from "~/.server/db/lab-sessions.server";
 import { PageTitle } from "~/components/page";
 import { FormMessage } from "~/components/form";
 import { ProblemList, RunPlotsView, StatusBadge } from "~/components/run-plots";
-import { sig, unitText, withInterval } from "~/lib/format";
+import { modelText, sig, unitText, withInterval } from "~/lib/format";
 import { methodText } from "~/lib/marking/feedback";
 import { data } from "react-router";
 import { trailFor } from "~/lib/place";
@@ -162,7 +162,7 @@ export default function ReviewSubmission({ loaderData, actionData }: Route.Compo
                 {view.ownLine ? <div><dt className="inline font-bold">{OWN_LINE_STAFF_NAME}</dt> <dd className="inline num">{withInterval(view.ownLine.k, view.ownLine.kCI95)} {unitText(fit.kUnit)}: {ownLineMethod(fit)} (the analysis check's k)</dd></div> : null}
                 <div><dt className="inline font-bold">Curve fit</dt> <dd className="inline num">{withInterval(fit.nonlinear.k, fit.nonlinear.kCI95)}</dd></div>
               </dl>
-              <p className="mt-1 text-sm">R² {sig(fit.r2, 5)}; {fit.n} readings; {sig(fit.fractionReacted * 100, 3)} % of the limiting reagent reacted; model {fit.model}.</p>
+              <p className="mt-1 text-sm">R² {sig(fit.r2, 5)}; {fit.n} readings; {sig(fit.fractionReacted * 100, 3)} % of the limiting reagent reacted; model: {modelText(fit.model)}.</p>
               <h3 className="mt-4 font-bold">Flags</h3>
               {flags.length ? <ul className="mt-1 space-y-1 text-sm">{flags.map((f) => (
                 <li key={f.code} className="rounded border-l-4 border-warn bg-warn-soft px-3 py-1" data-flag={f.code}>
