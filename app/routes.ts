@@ -91,6 +91,8 @@ export default [
     route("groups/:groupId/submissions/preview", "routes/api/submission-preview.ts"),
     route("submissions/:submissionId", "routes/api/submission.ts"),
     route("submissions/:submissionId/original", "routes/api/submission-original.ts"),
+    // Any other /api/ path: 404 JSON, never the HTML page.
+    route("*", "routes/api/not-found.ts"),
   ]),
 
   route("*", "routes/not-found.tsx"),

@@ -13,6 +13,7 @@ import * as m0020 from "./migrations/0020-api-tokens";
 import * as m0021 from "./migrations/0021-gradebook";
 import * as m0022 from "./migrations/0022-class-fit-exclusions";
 import * as m0025 from "./migrations/0025-gradebook-versions";
+import * as m0035 from "./migrations/0035-rate-limits";
 
 const migrations = [
   { name: "0001-foundation", ...m0001 },
@@ -26,6 +27,7 @@ const migrations = [
   { name: "0021-gradebook", ...m0021 },
   { name: "0022-class-fit-exclusions", ...m0022 },
   { name: "0025-gradebook-versions", ...m0025 },
+  { name: "0035-rate-limits", ...m0035 },
 ];
 
 export function createMigrator(sequelize: Sequelize, opts: { quiet?: boolean } = {}) {

@@ -4,7 +4,7 @@ import { Authenticator } from "remix-auth";
 import { FormStrategy } from "remix-auth-form";
 import { User } from "./db/models.server";
 import { verifyPassword } from "./passwords.server";
-import { recordAttempt, throttleWait } from "./throttle.server";
+import { beginSignIn, knownAccounts, signInSucceeded, waitWords } from "./throttle.server";
 import { clientAddress } from "./client-address.server";
 
 export type SignedInUser = Pick<User, "id" | "email" | "role" | "displayName">;
@@ -16,6 +16,13 @@ export class SignInError extends Error {
     readonly field: "email" | "password" | "form" = "form",
   ) {
     super(message);
+  }
+}
+
+/** Too many attempts: answered 429 with Retry-After. */
+export class SignInThrottled extends SignInError {
+  constructor(readonly retryAfterS: number) {
+    super(`Too many sign-in attempts. Try again in ${waitWords(retryAfterS)}, or reset your password.`);
   }
 }
 
@@ -35,17 +42,14 @@ authenticator.use(
     if (badEmail) throw new SignInError(badEmail, "email");
     if (!password) throw new SignInError("Enter your password.", "password");
 
-    const ip = clientAddress(request);
-    const wait = await throttleWait(email, ip);
-    if (wait > 0) {
-      const minutes = Math.ceil(wait / 60000);
-      throw new SignInError(
-        `Too many failed attempts. Try again in ${minutes} minute${minutes === 1 ? "" : "s"}, or reset your password.`,
-      );
-    }
+    const client = clientAddress(request);
     const user = await User.findOne({ where: { email } });
+    const knownDevice = user !== null && (await knownAccounts(request)).includes(user.id);
+    // A point is taken before the password is checked (race-free); a right password gives it back.
+    const gate = await beginSignIn(email, client, knownDevice);
+    if (!gate.ok) throw new SignInThrottled(gate.retryAfterS);
     const ok = await verifyPassword(password, user?.passwordHash ?? null);
-    await recordAttempt(email, ip, ok);
+    if (ok && user) await signInSucceeded(email, client, gate.counted);
     // Unknown e-mail and wrong password get the same message, so accounts cannot be probed.
     if (!ok || !user) throw new SignInError(GENERIC_FAILURE);
     return { id: user.id, email: user.email, role: user.role, displayName: user.displayName };

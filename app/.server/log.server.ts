@@ -7,6 +7,8 @@ import pino from "pino";
 
 interface RequestStore {
   requestId: string;
+  /** the socket's remote address (client-address.server.ts; request limits) */
+  peerAddress?: string;
 }
 
 const KEY = Symbol.for("ratebook.request-context");

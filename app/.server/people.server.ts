@@ -125,15 +125,17 @@ export async function sendPasswordResetLink(email: string): Promise<boolean> {
   });
 }
 
-export function resetPassword(rawToken: string, input: { password: unknown; confirm: unknown }): Promise<Outcome<User>> {
-  return redeemToken(rawToken, "password-reset", input, {}, async (user, passwordHash, transaction) => {
+export async function resetPassword(rawToken: string, input: { password: unknown; confirm: unknown }): Promise<Outcome<User>> {
+  const done = await redeemToken(rawToken, "password-reset", input, {}, async (user, passwordHash, transaction) => {
     await user.update({ passwordHash }, { transaction });
     // Whoever knew the old password is signed out everywhere, and the lock the sign-in page
     // recommended a reset for no longer stands in the way of the new password.
     await endSessionsOf(user.id, "password-reset", { transaction });
-    await liftSignInLock(user.email, transaction);
     await recordAudit({ actorId: user.id, action: "user.password-reset", entityType: "user", entityId: user.id }, transaction);
   });
+  // the lock the sign-in page recommended a reset for no longer stands in the way of the new password
+  if (done.ok) await liftSignInLock(done.value.email);
+  return done;
 }
 
 const ROLE_RANK: Record<Role, number> = { member: 0, "course-creator": 1, admin: 2 };

@@ -15,3 +15,11 @@ export function requireSameOriginWrite(request: Request, principal: Principal | 
     throw Response.json({ error: `A write from ${origin} is refused: use Ratebook's own pages, or an API token.` }, { status: 403 });
   }
 }
+
+/** For writes that need no sign-in (sign-out): a browser's Origin must be ours, cookie or not. */
+export function requireSameOriginPost(request: Request) {
+  const origin = request.headers.get("origin");
+  if (origin === null) return;
+  const ours = new Set([new URL(request.url).origin, new URL(config.appUrl).origin]);
+  if (!ours.has(origin)) throw Response.json({ error: `A write from ${origin} is refused: use Ratebook's own pages.` }, { status: 403 });
+}

@@ -97,7 +97,7 @@ export function createApp(options: HttpServerOptions) {
     const requestId = requestIdOf(req, options.trustProxy);
     req.headers["x-request-id"] = requestId;
     res.setHeader("X-Request-Id", requestId);
-    requestContext.run({ requestId }, next);
+    requestContext.run({ requestId, peerAddress: req.socket.remoteAddress }, next);
   });
   app.use(
     pinoHttp({

@@ -75,6 +75,7 @@ export const ACCESS: Record<string, RouteAccess> = {
   "routes/admin/jobs.tsx": { url: "/admin/jobs", get: ADMIN_ONLY, post: [302, 400, 403, 403, 403, 403], screens: ["admin"] },
 
   "routes/api/me.ts": { url: "/api/me", get: [401, 200, 200, 200, 200, 200], post: API_NO_METHOD },
+  "routes/api/not-found.ts": { url: "/api/no-such-thing", get: [404, 404, 404, 404, 404, 404], post: [404, 404, 404, 404, 404, 404] },
   "routes/api/fit.ts": { url: "/api/fit", get: API_NO_METHOD, post: [401, 400, 400, 400, 403, 403] },
   "routes/api/courses.ts": { url: "/api/courses", get: [401, 200, 200, 200, 200, 200], post: API_NO_METHOD },
   "routes/api/openapi.ts": { url: "/api/openapi.json", get: [200, 200, 200, 200, 200, 200], post: API_NO_METHOD },

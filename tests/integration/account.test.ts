@@ -4,9 +4,8 @@ import { Op } from "sequelize";
 import { action as accountAction, loader as accountLoader } from "~/routes/account";
 import { action as forgotAction } from "~/routes/auth/password-forgot";
 import { loader as resetLoader } from "~/routes/auth/password-reset";
-import { AuditEntry, SignInAttempt, User } from "~/.server/db/models.server";
+import { AuditEntry, User } from "~/.server/db/models.server";
 import { hashPassword } from "~/.server/passwords.server";
-import { KEEP_ATTEMPTS_MS, recordAttempt } from "~/.server/throttle.server";
 import { call, linkToken, payloadOf, request, signInAs, statusOf, waitForMail } from "./helpers";
 
 async function makeUser(email: string, password: string) {
@@ -49,15 +48,5 @@ describe("a new link replaces the older one", () => {
     const [older, newer] = mails.map((m) => linkToken(m.text, "/password/reset"));
     expect(payloadOf(await call(resetLoader, request(`/password/reset/${older}`), { token: older }))).toMatchObject({ valid: false, message: expect.stringMatching(/newest reset e-mail/) });
     expect(payloadOf(await call(resetLoader, request(`/password/reset/${newer}`), { token: newer }))).toMatchObject({ valid: true });
-  });
-});
-
-describe("sign-in attempts", () => {
-  test("attempts older than a day are pruned when a new one is recorded", async () => {
-    const old = await SignInAttempt.create({ email: "old-attempt@demo.ratebook.invalid", ip: "unknown", succeeded: false });
-    await SignInAttempt.update({ createdAt: new Date(Date.now() - KEEP_ATTEMPTS_MS - 60_000) }, { where: { id: old.id }, silent: true });
-    await recordAttempt("fresh-attempt@demo.ratebook.invalid", "unknown", false);
-    expect(await SignInAttempt.count({ where: { id: old.id } })).toBe(0);
-    expect(await SignInAttempt.count({ where: { email: "fresh-attempt@demo.ratebook.invalid", createdAt: { [Op.gt]: new Date(Date.now() - 60_000) } } })).toBe(1);
   });
 });

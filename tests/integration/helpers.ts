@@ -3,6 +3,7 @@ import { RouterContextProvider } from "react-router";
 import { expect } from "vitest";
 import { action as signInAction } from "~/routes/auth/sign-in";
 import { runJobsUntilIdle } from "~/.server/jobs/worker.server";
+import { requestContext } from "~/.server/log.server";
 
 const BASE = "http://127.0.0.1:3100";
 
@@ -16,11 +17,19 @@ export function request(path: string, init: { form?: Record<string, string>; coo
   return new Request(BASE + path, { method: init.method ?? (body ? "POST" : "GET"), headers, body });
 }
 
+/**
+ * The client address the production server would record for these requests: one per test file
+ * (each file is one client), so request limits of one file do not spill into another's.
+ */
+export const TEST_PEER = `test-client-${crypto.randomUUID()}`;
+
 /** Runs a loader/action; a thrown Response (redirect, 4xx) is returned instead of thrown. */
-export async function call(handler: Handler, req: Request, params: Record<string, string> = {}): Promise<any> {
+export async function call(handler: Handler, req: Request, params: Record<string, string> = {}, peerAddress = TEST_PEER): Promise<any> {
   const url = new URL(req.url);
   try {
-    return await handler({ request: req, params, url, pattern: url.pathname, context: new RouterContextProvider() });
+    return await requestContext.run({ requestId: "test", peerAddress }, () =>
+      handler({ request: req, params, url, pattern: url.pathname, context: new RouterContextProvider() }),
+    );
   } catch (thrown) {
     return thrown;
   }

@@ -16,7 +16,7 @@ describe("sign-in lock and password reset", () => {
       await call(signInAction, request("/sign-in", { form: { email, password: `wrong-${i}-xxxxx` } }));
     }
     const locked = await call(signInAction, request("/sign-in", { form: { email, password: "old-password-1" } }));
-    expect(payloadOf(locked).error).toMatch(/Too many failed attempts/);
+    expect(payloadOf(locked).error).toMatch(/Too many sign-in attempts/);
 
     await call(forgotAction, request("/password/forgot", { form: { email } }));
     const token = linkToken((await waitForMail(email))[0].text, "/password/reset");

@@ -55,8 +55,9 @@ describe("sign-in", () => {
       expect(payloadOf(await call(signIn, form(email, `wrong-${i}`))).error).toBe(GENERIC_FAILURE);
     }
     const blocked = await call(signIn, form(email, "right-password-1"));
-    expect(statusOf(blocked)).toBe(400);
-    expect(payloadOf(blocked).error).toMatch(/Too many failed attempts\. Try again in 1[45] minutes/);
+    expect(statusOf(blocked)).toBe(429);
+    expect(blocked.init.headers["Retry-After"]).toMatch(/^\d+$/);
+    expect(payloadOf(blocked).error).toMatch(/Too many sign-in attempts\. Try again in 1[45] minutes/);
     // Another account is not affected.
     expect((await call(signIn, form("student@demo.ratebook.invalid", "demo-student-pass"))).status).toBe(302);
   });

@@ -1,5 +1,7 @@
 import type { Route } from "./+types/fit";
-import { requireCourseStaff } from "~/.server/guards.server";
+import { currentPrincipal, requireCourseStaff } from "~/.server/guards.server";
+import { requireSameOriginWrite } from "~/.server/same-origin.server";
+import { requireWithinLimit } from "~/.server/throttle.server";
 import { runRequest, validateRequest } from "~/lib/kinetics";
 import { readJson } from "~/.server/body.server";
 
@@ -9,8 +11,11 @@ import { readJson } from "~/.server/body.server";
  * 200 with the fit result, 400 with { errors: [{ path, message }] } listing every problem.
  */
 export async function action({ request }: Route.ActionArgs) {
-  await requireCourseStaff(request, { api: true });
+  const user = await requireCourseStaff(request, { api: true });
   if (request.method !== "POST") return Response.json({ errors: [{ path: "", message: "Use POST with a JSON body." }] }, { status: 405 });
+  // A resource route: the framework's origin check of page actions does not cover it.
+  requireSameOriginWrite(request, await currentPrincipal(request));
+  await requireWithinLimit("fit", `user:${user.id}`);
   // Counted while it streams in: 413 as soon as the body passes the JSON limit, chunked or not.
   const body = await readJson(request);
   const checked = validateRequest(body);

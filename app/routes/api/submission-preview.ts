@@ -8,11 +8,13 @@ import { practicalFor, requireGroup } from "~/.server/submissions/context.server
 import { readUpload } from "~/.server/submissions/upload.server";
 import { previewUpload } from "~/.server/submissions/service.server";
 import { requireSameOriginWrite } from "~/.server/same-origin.server";
+import { requireWithinLimit } from "~/.server/throttle.server";
 
 export async function action({ request, params }: Route.ActionArgs) {
   return whileDatabaseUp(true, async () => {
     const user = await requireUser(request, { api: true });
     requireSameOriginWrite(request, await currentPrincipal(request));
+    await requireWithinLimit("preview", `user:${user.id}`);
     const groupId = parseId(params.groupId);
     if (groupId === null) return Response.json({ error: "There is no such group." }, { status: 404 });
     await requireGroup(user, groupId, true);

@@ -3,6 +3,7 @@ import { currentPrincipal, requireUser } from "~/.server/guards.server";
 import { checkTokenRequest, createApiToken } from "~/.server/api-tokens.server";
 import { readJson } from "~/.server/body.server";
 import { requireSameOriginWrite } from "~/.server/same-origin.server";
+import { requireWithinLimit } from "~/.server/throttle.server";
 
 /**
  * POST { name, expiresInDays? } -> 201 { id, token, name, expiresAt }. Signed in with the session
@@ -16,6 +17,7 @@ export async function action({ request }: Route.ActionArgs) {
   requireSameOriginWrite(request, principal);
   const checked = checkTokenRequest(await readJson(request, { limit: 4096 }));
   if (!checked.ok) return Response.json({ errors: checked.errors }, { status: 400 });
+  await requireWithinLimit("tokenCreate", `user:${user.id}`);
   const made = await createApiToken(user, checked.name, checked.expiresInDays);
   return Response.json({ id: made.id, token: made.token, name: made.name, expiresAt: made.expiresAt }, { status: 201, headers: { "Cache-Control": "no-store" } });
 }

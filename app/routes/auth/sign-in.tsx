@@ -1,6 +1,7 @@
 import { data, Form, Link, redirect, useNavigation } from "react-router";
 import type { Route } from "./+types/sign-in";
-import { authenticator, SignInError } from "~/.server/auth.server";
+import { authenticator, SignInError, SignInThrottled } from "~/.server/auth.server";
+import { rememberAccount } from "~/.server/throttle.server";
 import { currentUser, safeReturnTo } from "~/.server/guards.server";
 import { startSession } from "~/.server/session.server";
 import { Button, Field, FormMessage } from "~/components/form";
@@ -23,8 +24,14 @@ export async function action({ request }: Route.ActionArgs) {
   const returnTo = safeReturnTo(form.get("returnTo"));
   try {
     const user = await authenticator.authenticate("form", withFormBody(request, form));
-    return startSession(user.id, returnTo, request);
+    const res = await startSession(user.id, returnTo, request);
+    // This browser now knows the account: others' failed guesses no longer hold it back.
+    res.headers.append("Set-Cookie", await rememberAccount(request, user.id));
+    return res;
   } catch (error) {
+    if (error instanceof SignInThrottled) {
+      return data({ error: error.message, field: error.field, email }, { status: 429, headers: { "Retry-After": String(error.retryAfterS) } });
+    }
     if (error instanceof SignInError) {
       return data({ error: error.message, field: error.field, email }, { status: 400 });
     }
