@@ -6,6 +6,11 @@ import { runMigrations } from "graphile-worker";
 import type { QueryInterface } from "sequelize";
 import { connectionStringOf, quietWorkerLogger } from "../../app/.server/jobs/connection.server";
 
+// graphile-worker applies each of its own migrations in a transaction of its own and records it in
+// graphile_worker.migrations (and tells a missing schema by a failed query), so this `up` cannot
+// run inside the migrator's transaction; one that stops half-way is continued by the next run.
+export const upInTransaction = false;
+
 export async function up({ context: qi }: { context: QueryInterface }) {
   await runMigrations({ connectionString: connectionStringOf(qi.sequelize), logger: quietWorkerLogger });
 }

@@ -5,7 +5,7 @@
 import { describe, expect, test } from "vitest";
 import pg from "pg";
 import { DataTypes, QueryTypes, Sequelize } from "sequelize";
-import { createMigrator } from "../../db/migrator";
+import { createMigrator, type Migration } from "../../db/migrator";
 import { getSequelize } from "~/.server/db/sequelize.server";
 import "~/.server/db/models.server";
 import "~/.server/db/api-token.server";
@@ -138,4 +138,98 @@ describe("migrations down and up again", () => {
       await admin.end();
     }
   }, 120_000);
+});
+
+describe("each migration in a transaction", () => {
+  // Migrations made here (never shipped): one that works, one whose `up` fails after it has made
+  // a table with an enum type, an index, a row and a column on the first one's table, and one
+  // whose `down` fails after dropping its table.
+  const spareName = "ratebook_test_migration_tx";
+  const probes: Migration[] = [
+    {
+      name: "9001-probe-kept",
+      up: async ({ context: qi }) => {
+        await qi.createTable("probe_kept", { id: { type: DataTypes.INTEGER, primaryKey: true }, state: { type: DataTypes.ENUM("a", "b"), allowNull: false } });
+        await qi.bulkInsert("probe_kept", [{ id: 1, state: "a" }]);
+      },
+      down: async ({ context: qi }) => {
+        await qi.dropTable("probe_kept", {});
+        await qi.sequelize.query('drop type if exists "enum_probe_kept_state"');
+      },
+    },
+    {
+      name: "9002-probe-half",
+      up: async ({ context: qi }) => {
+        await qi.createTable("probe_half", { id: { type: DataTypes.INTEGER, primaryKey: true }, kind: { type: DataTypes.ENUM("x", "y") } });
+        await qi.addIndex("probe_half", ["kind"]);
+        await qi.bulkInsert("probe_half", [{ id: 1, kind: "x" }]);
+        await qi.addColumn("probe_kept", "added", { type: DataTypes.TEXT });
+        await qi.bulkUpdate("probe_kept", { state: "b" }, { id: 1 });
+        await qi.sequelize.query("select 1 / 0"); // fails here, half-way
+      },
+      down: async ({ context: qi }) => {
+        await qi.dropTable("probe_half", {});
+      },
+    },
+  ];
+  const downFails: Migration = {
+    name: "9003-probe-down-fails",
+    up: async ({ context: qi }) => {
+      await qi.createTable("probe_down", { id: { type: DataTypes.INTEGER, primaryKey: true } });
+    },
+    down: async ({ context: qi }) => {
+      await qi.dropTable("probe_down", {});
+      await qi.bulkUpdate("probe_kept", { state: "b" }, { id: 1 });
+      await qi.sequelize.query("select * from no_such_table");
+    },
+  };
+
+  async function withSpare(work: (spare: Sequelize) => Promise<void>) {
+    const admin = new pg.Client({ connectionString: process.env.DATABASE_URL });
+    await admin.connect();
+    await admin.query(`drop database if exists ${spareName} with (force)`);
+    await admin.query(`create database ${spareName}`);
+    const url = new URL(process.env.DATABASE_URL!);
+    url.pathname = `/${spareName}`;
+    const spare = new Sequelize(url.href, { dialect: "postgres", dialectModule: pg, logging: false });
+    try {
+      await work(spare);
+    } finally {
+      await spare.close();
+      await admin.query(`drop database if exists ${spareName} with (force)`);
+      await admin.end();
+    }
+  }
+
+  const tables = (s: Sequelize) =>
+    s.query<{ table_name: string }>("select table_name from information_schema.tables where table_schema = 'public' order by 1", { type: QueryTypes.SELECT }).then((r) => r.map((t) => t.table_name));
+  const enumTypes = (s: Sequelize) =>
+    s.query<{ typname: string }>("select t.typname from pg_type t join pg_namespace n on n.oid = t.typnamespace where n.nspname = 'public' and t.typtype = 'e' order by 1", { type: QueryTypes.SELECT }).then((r) => r.map((t) => t.typname));
+  const recorded = (s: Sequelize) => s.query<{ name: string }>("select name from schema_migrations order by name", { type: QueryTypes.SELECT }).then((r) => r.map((m) => m.name));
+  const keptRow = (s: Sequelize) => s.query<Record<string, unknown>>("select * from probe_kept", { type: QueryTypes.SELECT });
+
+  test("a migration that fails half-way leaves nothing behind and is not recorded; the one before it stays", async () => {
+    await withSpare(async (spare) => {
+      const migrator = createMigrator(spare, { quiet: true, migrations: probes });
+      await expect(migrator.up()).rejects.toThrow(/9002-probe-half/);
+      // PostgreSQL's own message comes through as the cause
+      await migrator.up().catch((e: Error & { cause?: Error }) => expect(e.cause?.message).toMatch(/division by zero/));
+      expect(await tables(spare)).toEqual(["probe_kept", "schema_migrations"]);
+      expect(await enumTypes(spare)).toEqual(["enum_probe_kept_state"]);
+      expect(await keptRow(spare)).toEqual([{ id: 1, state: "a" }]); // no "added" column, state not changed
+      expect(await recorded(spare)).toEqual(["9001-probe-kept"]);
+      expect((await migrator.pending()).map((m) => m.name)).toEqual(["9002-probe-half"]);
+    });
+  }, 60_000);
+
+  test("a down that fails half-way leaves the migration applied and recorded", async () => {
+    await withSpare(async (spare) => {
+      const migrator = createMigrator(spare, { quiet: true, migrations: [probes[0], downFails] });
+      expect((await migrator.up()).map((m) => m.name)).toEqual(["9001-probe-kept", "9003-probe-down-fails"]);
+      await expect(migrator.down()).rejects.toThrow(/9003-probe-down-fails/);
+      expect(await tables(spare)).toEqual(["probe_down", "probe_kept", "schema_migrations"]);
+      expect(await keptRow(spare)).toEqual([{ id: 1, state: "a" }]);
+      expect(await recorded(spare)).toEqual(["9001-probe-kept", "9003-probe-down-fails"]);
+    });
+  }, 60_000);
 });
