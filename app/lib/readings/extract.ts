@@ -2,8 +2,11 @@
 // header, or as the group chose), which units, and a problem with row and column for every row
 // that cannot be used. Refuses when fewer than MIN_USABLE_ROWS rows remain.
 import type { ConcentrationUnit, TimeUnit } from "../kinetics/units.ts";
+import { concentrationUnitFrom, timeUnitFrom } from "./unit-words.ts";
 import { Refusal } from "./csv.ts";
 import { cellNumber, columnText, describeTable, isBlankRow, numericColumns, type ColumnInfo, type RawTable, type TableShape } from "./table.ts";
+
+export { concentrationUnitFrom, timeUnitFrom };
 
 export const MIN_USABLE_ROWS = 4;
 
@@ -35,27 +38,6 @@ export interface Extracted {
   rowNumbers: number[];
   problems: ReadingProblem[];
   notes: string[];
-}
-
-const TIME_UNIT_WORDS: Record<string, TimeUnit> = {
-  s: "s", sec: "s", secs: "s", second: "s", seconds: "s",
-  min: "min", mins: "min", minute: "min", minutes: "min",
-  h: "h", hr: "h", hrs: "h", hour: "h", hours: "h",
-};
-
-/** "min" -> "min", "seconds" -> "s"; null when the text is not a time unit. */
-export function timeUnitFrom(unit: string): TimeUnit | null {
-  return TIME_UNIT_WORDS[unit.trim().toLowerCase().replace(/\.$/, "")] ?? null;
-}
-
-/** "mol/L", "M", "mol L-1", "mol dm-3", "mol/dm3" -> mol/L; the same with m/milli -> mmol/L. */
-export function concentrationUnitFrom(unit: string): ConcentrationUnit | null {
-  const u = unit.trim().replace(/\s+/g, " ").replace(/[⁻−]/g, "-").replace(/¹/g, "1").replace(/³/g, "3").replace(/·/g, " ");
-  if (u === "M") return "mol/L";
-  if (u === "mM") return "mmol/L";
-  const m = /^(m?)mol ?(\/ ?(l|dm3|dm\^3)|(l|dm)\^?-[13])$/i.exec(u);
-  if (!m) return null;
-  return m[1] ? "mmol/L" : "mol/L";
 }
 
 const TIME_NAMES = /^(t|time|elapsed( time)?|zeit|tiempo|temps|tid|czas|clock)$/i;
@@ -138,7 +120,12 @@ export function extractPoints(
       `${fileName} has only ${points.length} usable row(s) of ${columnText(time)} and ${columnText(value)}; at least ${MIN_USABLE_ROWS} are needed to fit a rate constant.${why}`,
     );
   }
-  return { shape, time, value, points, rowNumbers, problems, notes: table.notes };
+  const notes = [...table.notes];
+  if (shape.unitsRow >= 0) {
+    const units = [time, value].map((c) => `${c.letter}${c.header ? ` (${c.header})` : ""}: ${c.unit || "none"}`).join(", ");
+    notes.push(`Row ${table.rows[shape.unitsRow].rowNumber} holds the units, not readings; they were applied (${units}).`);
+  }
+  return { shape, time, value, points, rowNumbers, problems, notes };
 }
 
 function describeBad(cell: unknown, what: string, decimalComma: boolean): string {

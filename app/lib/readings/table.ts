@@ -2,6 +2,8 @@
 // what we can say about its columns: header text, the unit written in it, whether it holds numbers.
 // Pure, so the server, the tests and the browser share it.
 
+import { isUnitCell, unitCellText } from "./unit-words.ts";
+
 /** One cell as read: a number already (spreadsheets), text (CSV, spreadsheet text) or nothing. */
 export type Cell = number | string | null;
 
@@ -41,6 +43,8 @@ export interface ColumnInfo {
 export interface TableShape {
   /** index into rows of the header row, or -1 without one */
   headerRow: number;
+  /** index into rows of a row of units under the header (`min,mmol/L`), or -1 without one */
+  unitsRow: number;
   /** index into rows of the first data row */
   firstDataRow: number;
   columns: ColumnInfo[];
@@ -110,12 +114,16 @@ export function describeTable(table: RawTable): TableShape | null {
     }
   }
   if (firstDataRow < 0) return null;
-  let headerRow = -1;
-  for (let i = firstDataRow - 1; i >= 0; i--) {
-    if (!isBlankRow(rows[i])) {
-      headerRow = i;
-      break;
-    }
+  const lastTextRowBefore = (end: number) => {
+    for (let i = end - 1; i >= 0; i--) if (!isBlankRow(rows[i])) return i;
+    return -1;
+  };
+  let headerRow = lastTextRowBefore(firstDataRow);
+  // Spreadsheets and loggers often write the units in a row of their own under the names.
+  let unitsRow = -1;
+  if (headerRow >= 0 && isUnitsRow(rows[headerRow])) {
+    unitsRow = headerRow;
+    headerRow = lastTextRowBefore(unitsRow);
   }
   const width = rows.slice(Math.max(0, headerRow), rows.length).reduce((w, r) => Math.max(w, r.cells.length), 0);
   const dataRows = rows.slice(firstDataRow).filter((r) => !isBlankRow(r));
@@ -123,7 +131,12 @@ export function describeTable(table: RawTable): TableShape | null {
   for (let c = 0; c < width; c++) {
     const headerCell = headerRow >= 0 ? rows[headerRow].cells[c] : null;
     const header = headerCell === null || headerCell === undefined ? "" : String(headerCell).trim();
-    const { name, unit } = splitHeader(header);
+    const split = splitHeader(header);
+    const unitCell = unitsRow >= 0 ? rows[unitsRow].cells[c] : null;
+    const rowUnit = typeof unitCell === "string" ? unitCellText(unitCell) : "";
+    // under a units row, "c(A)" is a name (the species), not a name and a unit
+    const name = rowUnit && split.unit && !isUnitCell(split.unit) ? header : split.name;
+    const unit = rowUnit || split.unit;
     let numeric = 0;
     for (const r of dataRows) if (cellNumber(r.cells[c] ?? null, table.decimalComma) !== null) numeric++;
     columns.push({
@@ -135,7 +148,13 @@ export function describeTable(table: RawTable): TableShape | null {
       numericShare: dataRows.length ? numeric / dataRows.length : 0,
     });
   }
-  return { headerRow, firstDataRow, columns };
+  return { headerRow, unitsRow, firstDataRow, columns };
+}
+
+/** A row whose filled cells are all units ("min", "(mmol/L)", "mS/cm"): at least one, no numbers. */
+export function isUnitsRow(row: RawRow): boolean {
+  const filled = row.cells.filter((c) => c !== null && !(typeof c === "string" && c.trim() === ""));
+  return filled.length > 0 && filled.every((c) => typeof c === "string" && isUnitCell(c));
 }
 
 /** Columns that hold numbers in at least half the data rows: the ones a reading could come from. */
