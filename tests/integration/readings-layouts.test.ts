@@ -3,12 +3,13 @@
 // marks; mistaken ones the refusal or flag that names their cause; none is left waiting.
 import { afterAll, beforeAll, describe, expect, test } from "vitest";
 import { action as upload } from "~/routes/api/group-submissions";
+import { action as preview } from "~/routes/api/submission-preview";
 import { Submission } from "~/.server/db/submissions.server";
 import { runJobsUntilIdle } from "~/.server/jobs/worker.server";
 import { closeSequelize } from "~/.server/db/sequelize.server";
 import { call } from "./helpers";
 import { makePractical, uploadRequest, type Practical } from "./practical-fixture";
-import { benchTruth, everyS, sig4, workbook } from "./bench-truth";
+import { benchTruth, clock, everyS, sig4, stopwatch, workbook } from "./bench-truth";
 
 const XLSX = "application/vnd.openxmlformats-officedocument.spreadsheetml.sheet";
 let p: Practical;
@@ -26,6 +27,11 @@ afterAll(async () => {
 
 async function send(g: number, file: { bytes: Uint8Array | string; name: string; type?: string }, fields: Record<string, string> = {}) {
   const res: Response = await call(upload, uploadRequest(`/api/groups/${p.groups[g].id}/submissions`, cookies[g], file, { measured: "concentrationA", ...fields }), { groupId: String(p.groups[g].id) });
+  return { status: res.status, body: (await res.json()) as any };
+}
+
+async function previewOf(g: number, file: { bytes: Uint8Array | string; name: string; type?: string }, fields: Record<string, string> = {}) {
+  const res: Response = await call(preview, uploadRequest(`/api/groups/${p.groups[g].id}/submissions/preview`, cookies[g], file, { measured: "concentrationA", ...fields }), { groupId: String(p.groups[g].id) });
   return { status: res.status, body: (await res.json()) as any };
 }
 
@@ -76,5 +82,77 @@ describe("a units row under the header row", () => {
     // the readings are 1000 times the feed as the units row reads it: the engine names the unit
     expect(s.flags.find((f) => f.code === "feed-mismatch")).toMatchObject({ factor: 1000 });
     expect(s.feedback.join(" ")).toMatch(/right concentration unit/);
+  });
+});
+
+describe("times written as mm:ss, h:mm:ss or clock times", () => {
+  // bench 2 (35 degC) over 50 minutes, a reading every 75 s: seconds that are not whole minutes
+  const truth = (from = 0) => benchTruth(p, p.benches[1], everyS(75, 3000).map((t) => t + from));
+  const csvOf = (times: string[], t: ReturnType<typeof truth>) => ["time,CA (mmol/L)", ...times.map((x, i) => `${x},${sig4(t.CA[i] * 1000)}`)].join("\n") + "\n";
+
+  test("stopwatch mm:ss (03:00): read as minutes:seconds since mixing, full marks, the preview says how", async () => {
+    const t = truth();
+    const file = { bytes: csvOf(t.t.map((x) => stopwatch(x, "mm:ss")), t), name: "stopwatch.csv" };
+    const pre = await previewOf(1, file);
+    expect(pre.status).toBe(200);
+    expect(pre.body.refused).toBeNull();
+    expect(pre.body.timeUnit).toBe("s");
+    expect(pre.body.notes.join(" ")).toMatch(/Column A \(time\) holds times written mm:ss \(minutes:seconds\), read as time elapsed since mixing\. For example row 3, 01:15, is 75 s\./);
+    const s = await marked(1, file, { reportedK: String(t.k) });
+    expect(s.readings!.points.slice(0, 3).map((x) => x[0])).toEqual([0, 75, 150]);
+    expect(s.autoMark).toBe(100);
+  });
+
+  test("logger h:mm:ss from 0:00:00 (1:03:00): elapsed hours, full marks", async () => {
+    const t = benchTruth(p, p.benches[1], everyS(150, 4500));
+    const s = await marked(1, { bytes: csvOf(t.t.map((x) => stopwatch(x, "h:mm:ss")), t), name: "logger.csv" }, { reportedK: String(t.k) });
+    expect(s.readings!.points.at(-1)![0]).toBe(4500);
+    expect(s.readings!.notes.join(" ")).toMatch(/h:mm:ss \(hours:minutes:seconds\), read as time elapsed since mixing/);
+    expect(s.autoMark).toBe(100);
+  });
+
+  test("clock times from a reading at mixing (14:05:00): counted from the first reading, full marks", async () => {
+    const t = truth();
+    const s = await marked(1, { bytes: csvOf(t.t.map((x) => clock(14 * 3600 + 5 * 60, x)), t), name: "clock.csv" }, { reportedK: String(t.k) });
+    expect(s.readings!.points[2][0]).toBe(150);
+    expect(s.readings!.notes.join(" ")).toMatch(/clock times \(hh:mm:ss\), read as seconds since the first reading \(row 2, 14:05:00\)/);
+    expect(s.autoMark).toBe(100);
+  });
+
+  test("clock times through midnight: the next day goes on counting, full marks", async () => {
+    const t = truth();
+    const s = await marked(1, { bytes: csvOf(t.t.map((x) => clock(23 * 3600 + 40 * 60, x)), t), name: "night.csv" }, { reportedK: String(t.k) });
+    expect(s.readings!.points.at(-1)![0]).toBe(3000);
+    expect(s.autoMark).toBe(100);
+  });
+
+  test("clock times whose first reading is 45 s after mixing, with the start the group gives: full marks", async () => {
+    const t = truth(45);
+    const mixing = 9 * 3600 + 30 * 60;
+    const file = { bytes: csvOf(t.t.map((x) => clock(mixing, x)), t), name: "late-first.csv" };
+    const pre = await previewOf(1, file, { startTime: "09:30:00" });
+    expect(pre.body.notes.join(" ")).toMatch(/read as seconds since the start you gave \(09:30:00\)\. For example row 3, 09:32:00, is 120 s\./);
+    const s = await marked(1, file, { reportedK: String(t.k), startTime: "09:30:00" });
+    expect(s.readings!.points[0][0]).toBe(45);
+    expect(s.autoMark).toBe(100);
+  });
+
+  test("a start after the first clock reading is refused (422) naming the row; a start that is no clock time is a field error", async () => {
+    const t = truth();
+    const bytes = csvOf(t.t.map((x) => clock(10 * 3600, x)), t);
+    const r = await send(1, { bytes, name: "early.csv" }, { startTime: "10:01" });
+    expect(r.status).toBe(422);
+    expect(r.body.errors[0].message).toMatch(/^Row 2, column A \(time\): the time 10:00:00 is before the start you gave \(10:01:00\)/);
+    const bad = await send(1, { bytes, name: "early.csv" }, { startTime: "ten past" });
+    expect(bad.status).toBe(400);
+    expect(bad.body.errors).toEqual([{ path: "startTime", message: expect.stringMatching(/clock time of mixing as hh:mm/) }]);
+  });
+
+  test(".xlsx with the same clock times typed as text: read as in the CSV, full marks", async () => {
+    const t = truth();
+    const bytes = await workbook([["time", "CA (mmol/L)"], ...t.t.map((x, i) => [clock(14 * 3600, x), Number(sig4(t.CA[i] * 1000))])]);
+    const s = await marked(1, { bytes, name: "typed.xlsx", type: XLSX }, { reportedK: String(t.k) });
+    expect(s.readings!.points[1][0]).toBe(75);
+    expect(s.autoMark).toBe(100);
   });
 });

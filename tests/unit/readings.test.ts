@@ -6,6 +6,7 @@ import { readCsv, Refusal, binaryKind } from "~/lib/readings/csv";
 import { extractPoints, guessColumns, concentrationUnitFrom, timeUnitFrom } from "~/lib/readings/extract";
 import { cellNumber, splitHeader, describeTable, columnLetter } from "~/lib/readings/table";
 import { readReadingsFile } from "~/.server/readings/read.server";
+import { parseStart } from "~/lib/readings/clock-times";
 
 const enc = (s: string) => new TextEncoder().encode(s);
 const csv = (s: string) => extractPoints(readCsv(enc(s), "run.csv"), {}, "run.csv");
@@ -189,7 +190,7 @@ describe(".xlsx", () => {
     const r = extractPoints(table);
     expect(r.points.map((p) => p[0])).toEqual([0, 90, 180, 300]);
     expect(r.time.unit).toBe("s");
-    expect(table.notes.join(" ")).toMatch(/Column A held clock times/);
+    expect(table.notes.join(" ")).toMatch(/Column A \(clock\) holds clock times \(hh:mm:ss\), read as seconds since the first reading \(row 2, 09:15:00\)/);
   });
 
   test("an .xlsx renamed .csv still reads; a workbook without numbers is refused", async () => {
@@ -229,5 +230,29 @@ describe("a decimal comma in a comma-separated file", () => {
   test("an extra column of whole numbers with points elsewhere is not taken for split decimals", () => {
     const r = csv("t,c,T\n0,0.02,25\n1,0.018,25\n2,0.016,25\n3,0.015,25\n");
     expect(r.points).toEqual([[0, 0.02], [1, 0.018], [2, 0.016], [3, 0.015]]);
+  });
+});
+
+describe("times written with colons (the numbers are the ones written in the file)", () => {
+  test("hh:mm under a header that names a clock: hours and minutes, from the first reading", () => {
+    const r = csv("clock,CA (mmol/L)\n09:58,20\n10:00,18\n10:04,16\n10:10,14\n");
+    expect(r.points.map((x) => x[0])).toEqual([0, 120, 360, 720]);
+    expect(r.time.unit).toBe("s");
+  });
+  test("a units row that says hh:mm:ss over clock times", () => {
+    const r = csv("time,CA\nhh:mm:ss,mmol/L\n08:00:00,20\n08:00:30,19\n08:01:00,18\n08:01:30,17\n");
+    expect(r.points.map((x) => x[0])).toEqual([0, 30, 60, 90]);
+    expect(r.value.unit).toBe("mmol/L");
+  });
+  test("a date and time per reading: counted from the first", () => {
+    const r = csv("when;A\n2026-12-04 23:59:30;1,0\n2026-12-05 00:00:30;0,9\n2026-12-05 00:01:30;0,8\n2026-12-05 00:02:30;0,7\n");
+    expect(r.points.map((x) => x[0])).toEqual([0, 60, 120, 180]);
+  });
+  test("a column with a few colon times among numbers is left alone", () => {
+    const r = csv("t,c,note\n0,1,ok\n1,0.9,10:00\n2,0.8,\n3,0.7,\n");
+    expect(r.points).toEqual([[0, 1], [1, 0.9], [2, 0.8], [3, 0.7]]);
+  });
+  test("start times", () => {
+    expect([parseStart("14:02"), parseStart("14:02:30"), parseStart("25:00"), parseStart("2pm")]).toEqual([50520, 50550, null, null]);
   });
 });

@@ -89,6 +89,7 @@ export const submissionsPart: ApiPart = {
                   reportedK: { type: "string", description: "the k the group worked out, per second" },
                   reportedMethod: { type: "string", enum: ["ln(CA0/CA)", "1/CA - 1/CA0", "ln[(CB*CA0)/(CB0*CA)]", "curve-fit", "other"] },
                   sessionId: { type: "string", description: "the practical, when the group has benches in several" },
+                  startTime: { type: "string", description: "clock time of mixing (hh:mm or hh:mm:ss) for times written as clock times; without it they count from the first reading" },
                 },
               },
               "x-test-example": { file: { name: "invented-run.csv", type: "text/csv", text: exampleCsv }, fields: { measured: "concentrationA", reportedK: "0.0153", reportedMethod: "ln[(CB*CA0)/(CB0*CA)]" } },

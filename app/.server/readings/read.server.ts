@@ -1,14 +1,14 @@
 // One entry for an uploaded readings file: the content decides how it is read (an .xlsx is a
 // zip archive), not the name, so a spreadsheet renamed .csv still reads and a PNG renamed .csv is refused.
-import { readCsv, startsWith, ZIP_SIGNATURE } from "~/lib/readings/csv";
+import { readCsv, startsWith, ZIP_SIGNATURE, type ReadOptions } from "~/lib/readings/csv";
 import type { RawTable } from "~/lib/readings/table";
 import { readXlsx } from "./xlsx.server";
 
 export const XLSX_TYPE = "application/vnd.openxmlformats-officedocument.spreadsheetml.sheet";
 
-export async function readReadingsFile(bytes: Uint8Array, fileName: string): Promise<RawTable> {
-  if (startsWith(bytes, ZIP_SIGNATURE)) return readXlsx(bytes, fileName);
-  return readCsv(bytes, fileName);
+export async function readReadingsFile(bytes: Uint8Array, fileName: string, options: ReadOptions = {}): Promise<RawTable> {
+  if (startsWith(bytes, ZIP_SIGNATURE)) return readXlsx(bytes, fileName, options);
+  return readCsv(bytes, fileName, options);
 }
 
 /** The content type stored with an original: what the bytes are, whatever the browser said. */

@@ -2,9 +2,10 @@
 // numeric columns, formulas read by the value the spreadsheet cached when it was saved, and dates
 // or times of day turned into seconds elapsed since the first reading of that column.
 import ExcelJS from "exceljs";
-import { Refusal } from "~/lib/readings/csv";
+import { Refusal, type ReadOptions } from "~/lib/readings/csv";
+import { convertTimeColumns, elapsedTimes, sheetTimeValue, type TimeValue } from "~/lib/readings/clock-times";
 import { checkXlsxBounds, READINGS_XLSX_LIMITS, XlsxBoundsError } from "./xlsx-bounds.server";
-import { cellNumber, describeTable, numericColumns, type Cell, type RawTable } from "~/lib/readings/table";
+import { cellNumber, columnLetter, describeTable, numericColumns, type Cell, type RawTable } from "~/lib/readings/table";
 
 type Value = ExcelJS.CellValue;
 
@@ -25,7 +26,7 @@ function plain(v: Value): number | string | Date | null {
   return null;
 }
 
-export async function readXlsx(bytes: Uint8Array, fileName = "the file"): Promise<RawTable> {
+export async function readXlsx(bytes: Uint8Array, fileName = "the file", options: ReadOptions = {}): Promise<RawTable> {
   try {
     await checkXlsxBounds(bytes, fileName, READINGS_XLSX_LIMITS);
   } catch (error) {
@@ -40,7 +41,7 @@ export async function readXlsx(bytes: Uint8Array, fileName = "the file"): Promis
   }
   const skipped: string[] = [];
   for (const ws of wb.worksheets) {
-    const table = sheetTable(ws);
+    const table = sheetTable(ws, options.start ?? null);
     const shape = describeTable(table);
     if (shape && numericColumns(shape).length >= 2) {
       if (skipped.length) table.notes.push(`Sheet${skipped.length > 1 ? "s" : ""} ${skipped.map((s) => `"${s}"`).join(", ")} held no pair of numeric columns and ${skipped.length > 1 ? "were" : "was"} skipped.`);
@@ -55,7 +56,7 @@ export async function readXlsx(bytes: Uint8Array, fileName = "the file"): Promis
   );
 }
 
-function sheetTable(ws: ExcelJS.Worksheet): RawTable {
+function sheetTable(ws: ExcelJS.Worksheet, start: number | null): RawTable {
   const grid: Array<{ rowNumber: number; values: Array<number | string | Date | null> }> = [];
   let width = 0;
   ws.eachRow({ includeEmpty: true }, (row, rowNumber) => {
@@ -67,29 +68,38 @@ function sheetTable(ws: ExcelJS.Worksheet): RawTable {
     width = Math.max(width, values.length);
     grid.push({ rowNumber, values });
   });
-  // Date cells (a date, a time of day, a duration): seconds since the column's first date.
+  // Date cells (a date, a time of day, a duration): seconds elapsed, by the same rules as CSV
+  // times (app/lib/readings/clock-times.ts), each column with a note saying how.
   const elapsedColumns: number[] = [];
+  const notes = [`Read sheet "${ws.name}"; formulas by their saved values.`];
+  const converted = new Map<number, Map<number, number>>();
   for (let c = 0; c < width; c++) {
-    const first = grid.find((r) => r.values[c] instanceof Date)?.values[c] as Date | undefined;
-    if (first) elapsedColumns.push(c);
+    const values: TimeValue[] = [];
+    let firstAt = -1;
+    grid.forEach((r, i) => {
+      const v = r.values[c];
+      if (v instanceof Date) {
+        if (firstAt < 0) firstAt = i;
+        values.push(sheetTimeValue(v, r.rowNumber));
+      }
+    });
+    if (!values.length) continue;
+    const above = grid.slice(Math.max(0, firstAt - 2), firstAt).map((r) => r.values[c]).filter((x): x is string => typeof x === "string" && x.trim() !== "");
+    const name = above[0] ? `column ${columnLetter(c)} (${above[0].trim()})` : `column ${columnLetter(c)}`;
+    const { seconds, note } = elapsedTimes(values, name, above.join(" "), start);
+    converted.set(c, seconds);
+    elapsedColumns.push(c);
+    notes.push(note);
   }
-  const firstDate = new Map<number, number>();
   const rows = grid.map(({ rowNumber, values }) => ({
     rowNumber,
-    cells: values.map((v, c): Cell => {
-      if (v instanceof Date) {
-        if (!firstDate.has(c)) firstDate.set(c, v.getTime());
-        return (v.getTime() - firstDate.get(c)!) / 1000;
-      }
-      return v;
-    }),
+    cells: values.map((v, c): Cell => (v instanceof Date ? (converted.get(c)?.get(rowNumber) ?? null) : v)),
   }));
+  // Times typed as text ("03:00", "14:05:00") read as in a CSV file.
+  const typed = convertTimeColumns(rows, start);
+  elapsedColumns.push(...typed.columns);
+  notes.push(...typed.notes);
   // Blank rows between filled ones are kept so that row numbers match the sheet.
-  const notes = [`Read sheet "${ws.name}"; formulas by their saved values.`];
-  if (elapsedColumns.length) {
-    const letters = elapsedColumns.map((c) => String.fromCharCode(65 + (c % 26))).join(", ");
-    notes.push(`Column${elapsedColumns.length > 1 ? "s" : ""} ${letters} held clock times or dates, turned into seconds elapsed since the first one.`);
-  }
   const table: RawTable = { source: "xlsx", rows, notes, decimalComma: false, elapsedColumns, sheetName: ws.name };
   // Numbers typed as text with a decimal comma ("1,5") in an otherwise numeric sheet.
   let comma = 0;

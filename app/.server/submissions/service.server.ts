@@ -11,6 +11,7 @@ import { contentTypeOf, readReadingsFile } from "../readings/read.server";
 import type { UploadedFile } from "./upload.server";
 import { markingContext, practicalFor, valueHints, type PracticalOfGroup } from "./context.server";
 import { Refusal } from "~/lib/readings/csv";
+import { parseStart } from "~/lib/readings/clock-times";
 import { extractPoints, guessColumns, timeUnitFrom, concentrationUnitFrom, type ReadingProblem } from "~/lib/readings/extract";
 import { columnText, describeTable, numericColumns } from "~/lib/readings/table";
 import { previewRun } from "~/lib/marking/mark-run";
@@ -34,6 +35,8 @@ export interface UploadChoices {
   reportedK: number | null;
   reportedMethod: string | null;
   sessionId: number | null;
+  /** the clock time of mixing (seconds after midnight), for readings written as clock times */
+  startTime: number | null;
 }
 
 export function readChoices(fields: Record<string, string>, sessionMeasured: string | null): { choices: UploadChoices; problems: FieldProblem[] } {
@@ -58,6 +61,9 @@ export function readChoices(fields: Record<string, string>, sessionMeasured: str
   }
   const method = text("reportedMethod");
   if (method && !(method in REPORTED_METHODS)) problems.push({ path: "reportedMethod", message: `must be one of ${Object.keys(REPORTED_METHODS).join(", ")}` });
+  const startText = text("startTime");
+  const startTime = startText ? parseStart(startText) : null;
+  if (startText && startTime === null) problems.push({ path: "startTime", message: `must be the clock time of mixing as hh:mm or hh:mm:ss (e.g. 14:02:30), not "${startText.slice(0, 30)}"` });
   const sessionText = text("sessionId");
   const sessionId = sessionText ? Number(sessionText) : null;
   if (sessionText && !(Number.isInteger(sessionId) && sessionId! > 0)) problems.push({ path: "sessionId", message: "must be a practical's id" });
@@ -71,6 +77,7 @@ export function readChoices(fields: Record<string, string>, sessionMeasured: str
       reportedK,
       reportedMethod: method || null,
       sessionId,
+      startTime,
     },
     problems,
   };
@@ -90,7 +97,7 @@ export type ParseOutcome = ParsedUpload | { ok: false; message: string; columns:
 export async function parseUpload(file: UploadedFile, choices: UploadChoices, measured: string): Promise<ParseOutcome> {
   let columns: ParsedUpload["columns"] = [];
   try {
-    const table = await readReadingsFile(file.bytes, file.name);
+    const table = await readReadingsFile(file.bytes, file.name, { start: choices.startTime });
     const shape = describeTable(table);
     if (shape) {
       const numeric = new Set(numericColumns(shape).map((c) => c.index));

@@ -4,6 +4,7 @@
 import Papa from "papaparse";
 import type { RawTable } from "./table.ts";
 import { splitDecimalMessage, splitDecimalRow } from "./decimal-comma.ts";
+import { convertTimeColumns } from "./clock-times.ts";
 
 export class Refusal extends Error {
   constructor(message: string) {
@@ -83,7 +84,12 @@ function usesDecimalComma(rows: string[][], delimiter: string): boolean {
 
 const DELIMITER_NAME = { ",": "commas", ";": "semicolons", "\t": "tabs" } as const;
 
-export function readCsv(bytes: Uint8Array, fileName = "the file"): RawTable {
+export interface ReadOptions {
+  /** the clock time of mixing, seconds after midnight, when the group gave one */
+  start?: number | null;
+}
+
+export function readCsv(bytes: Uint8Array, fileName = "the file", options: ReadOptions = {}): RawTable {
   if (bytes.length === 0) throw new Refusal(`${fileName} is empty (0 bytes). Export the readings again and upload the new file.`);
   const binary = binaryKind(bytes);
   if (binary) {
@@ -97,14 +103,17 @@ export function readCsv(bytes: Uint8Array, fileName = "the file"): RawTable {
   const delimiter = pickDelimiter(lines);
   const parsed = Papa.parse<string[]>(text, { delimiter, skipEmptyLines: false, newline: undefined });
   // Papa gives one record per line (quoted line breaks aside); line numbers follow records.
-  const rows = parsed.data.map((cells, i) => ({ rowNumber: i + 1, cells: cells.map((c) => (c.trim() === "" ? null : c)) }));
+  const rows: RawTable["rows"] = parsed.data.map((cells, i) => ({ rowNumber: i + 1, cells: cells.map((c) => (c.trim() === "" ? null : c)) }));
   if (delimiter === ",") {
     const split = splitDecimals(parsed.data);
     if (split) throw new Refusal(`${fileName}: ${splitDecimalMessage(split, "row")}`);
   }
   const decimalComma = usesDecimalComma(parsed.data, delimiter);
   const notes = [`Columns separated by ${DELIMITER_NAME[delimiter]}${decimalComma ? ", decimal comma" : ""}.`];
-  return { source: "csv", rows, notes, decimalComma };
+  // "03:00", "1:03:00", "14:05:00": seconds elapsed, and a note saying how they were read
+  const times = convertTimeColumns(rows, options.start ?? null);
+  notes.push(...times.notes);
+  return { source: "csv", rows, notes, decimalComma, elapsedColumns: times.columns };
 }
 
 /**

@@ -212,6 +212,10 @@ export default function GroupSubmissions({ loaderData, actionData }: Route.Compo
             </div>
           </div>
           <div className="mb-3">
+            <label htmlFor="f-startTime" className="block font-bold">Clock time of mixing <span className="font-normal text-ink-soft">(only when the times are clock times and the first reading was not at mixing)</span></label>
+            <input id="f-startTime" name="startTime" type="text" inputMode="numeric" placeholder="hh:mm:ss, e.g. 14:02:30" autoComplete="off" className="mt-1 w-full rounded border border-ink-soft bg-white px-2 py-2" />
+          </div>
+          <div className="mb-3">
             <label htmlFor="f-measured" className="block font-bold">What the reading column holds</label>
             <select id="f-measured" name="measured" value={measured} onChange={(e) => setMeasured(e.currentTarget.value)} className="mt-1 w-full rounded border border-ink-soft bg-white px-2 py-2">
               <option value={practical.measured}>{MEASURED_TEXT[practical.measured] ?? practical.measured}</option>
