@@ -27,6 +27,7 @@ export default [
         route("reactions", "routes/courses/reactions.tsx"),
         route("sessions/new", "routes/courses/session-new.tsx"),
         route("gradebook", "routes/courses/gradebook.tsx"),
+        route("copy", "routes/courses/copy.tsx"),
       ]),
     ]),
     // Practicals: the plan, printable bench sheets, the prep list and the gradebook.
@@ -36,6 +37,7 @@ export default [
       route("benches/:benchId/sheet", "routes/sessions/bench-sheet.tsx"),
       route("prep", "routes/sessions/prep.tsx"),
       route("gradebook", "routes/sessions/gradebook.tsx"),
+      route("copy", "routes/sessions/copy.tsx"),
     ]),
     // Uploads and feedback (a group's own pages).
     route("groups/:groupId/submissions", "routes/groups/submissions.tsx"),
@@ -67,6 +69,9 @@ export default [
   ...prefix("sessions/:sessionId", [
     route("export.xlsx", "routes/sessions/export-xlsx.ts"),
     route("export.csv", "routes/sessions/export-csv.ts"),
+    // the bench assignment for the prep room, beside the printable prep list
+    route("benches.xlsx", "routes/sessions/benches-xlsx.ts"),
+    route("benches.csv", "routes/sessions/benches-csv.ts"),
   ]),
 
   // The load balancer's probe: no sign-in, no personal data.

@@ -63,6 +63,10 @@ export const ACCESS: Record<string, RouteAccess> = {
   "routes/courses/reactions.tsx": { url: "/courses/{course}/reactions", get: [302, 200, 200, 200, 403, 403], post: [302, 400, 400, 403, 403, 403], screens: ["instructor"] },
   "routes/courses/session-new.tsx": { url: "/courses/{course}/sessions/new", get: [302, 200, 200, 403, 403, 403], post: [302, 400, 400, 403, 403, 403], screens: ["instructor"] },
   "routes/sessions/session.tsx": { url: "/sessions/{session}", get: [302, 200, 200, 200, 200, 403], post: [302, 400, 400, 403, 403, 403], screens: ["instructor", "demonstrator", "student"] },
+  // Reuse: instructors copy a practical (an empty form names each missing field: 400); copying a
+  // course also needs an account that may create courses (the demo instructor's may).
+  "routes/sessions/copy.tsx": { url: "/sessions/{session}/copy", get: [302, 200, 200, 403, 403, 403], post: [302, 400, 400, 403, 403, 403], screens: ["instructor"] },
+  "routes/courses/copy.tsx": { url: "/courses/{course}/copy", get: [302, 200, 200, 403, 403, 403], post: [302, 400, 400, 403, 403, 403], screens: ["instructor"] },
   "routes/sessions/sheets.tsx": { url: "/sessions/{session}/sheets", get: [302, 200, 200, 200, 403, 403], post: NO_ACTION_PAGE, screens: ["instructor"] },
   // the demo student's own bench; another group's bench is a 404 for them (tests/integration/planning-access.test.ts)
   "routes/sessions/bench-sheet.tsx": { url: "/sessions/{session}/benches/{bench}/sheet", get: [302, 200, 200, 200, 200, 403], post: NO_ACTION_PAGE, screens: ["student"] },
@@ -101,6 +105,8 @@ export const ACCESS: Record<string, RouteAccess> = {
   "routes/courses/export-csv.ts": { url: "/courses/{course}/export.csv", get: [401, 200, 200, 200, 403, 403], post: API_NO_METHOD },
   "routes/sessions/export-xlsx.ts": { url: "/sessions/{session}/export.xlsx", get: [401, 200, 200, 200, 403, 403], post: API_NO_METHOD },
   "routes/sessions/export-csv.ts": { url: "/sessions/{session}/export.csv", get: [401, 200, 200, 200, 403, 403], post: API_NO_METHOD },
+  "routes/sessions/benches-xlsx.ts": { url: "/sessions/{session}/benches.xlsx", get: [401, 200, 200, 200, 403, 403], post: API_NO_METHOD },
+  "routes/sessions/benches-csv.ts": { url: "/sessions/{session}/benches.csv", get: [401, 200, 200, 200, 403, 403], post: API_NO_METHOD },
   "routes/api/feed-check.ts": { url: "/api/feed-check", get: API_NO_METHOD, post: [401, 400, 400, 400, 403, 403] },
   // Uploads, feedback and review: staff of the course and the group's own student; another
   // course's student is refused (403: not in the course). A page upload needs multipart (415).

@@ -1,4 +1,4 @@
-import { data, Form, useNavigation } from "react-router";
+import { data, Form, Link, useNavigation } from "react-router";
 import type { Route } from "./+types/course";
 import { NO_COURSE, ownCourseRole, requireCourseRole, requireUser } from "~/.server/guards.server";
 import { courseMembers, removeMember, setCourseArchived } from "~/.server/courses.server";
@@ -44,6 +44,8 @@ export async function loader({ request, params }: Route.LoaderArgs) {
     course: { id: course.id, code: course.code, title: course.title, term: course.term, archived: course.archivedAt !== null },
     myRole,
     canManage: actingRole === "instructor",
+    // copying makes a new course: the account must be one that may create courses
+    mayCopy: actingRole === "instructor" && (user.role === "admin" || user.role === "course-creator"),
     staffView,
     members,
     roles: COURSE_ROLES,
@@ -169,6 +171,13 @@ export default function CoursePage({ loaderData, actionData }: Route.ComponentPr
                   <Button busy={busy}>Add and invite</Button>
                 </Form>
                 <p className="mt-3 text-sm text-ink-soft">People new to Ratebook get an e-mail with a link to choose a password; the link works once, for 7 days.</p>
+              </section>
+            ) : null}
+            {loaderData.mayCopy ? (
+              <section aria-labelledby="copy-h" className="rounded border border-rule bg-white p-4">
+                <h2 id="copy-h" className="mb-2 text-xl font-bold">Next term</h2>
+                <p className="mb-3 text-sm text-ink-soft">A new course with this one's staff, reaction systems and practicals, without its students and marks.</p>
+                <Link className="inline-block rounded border border-ink-soft px-3 py-1 hover:bg-accent-soft" to={`/courses/${course.id}/copy`}>Copy to a new term</Link>
               </section>
             ) : null}
             <section aria-labelledby="archive-h" className="rounded border border-rule bg-white p-4">

@@ -22,7 +22,9 @@ export async function loader({ request, params }: Route.LoaderArgs) {
   const access = await sessionAccess(user, pathId(params.sessionId));
   const view = await sessionView(access);
   const groups = access.staff ? naturalSort(await Group.findAll({ where: { courseId: access.session.courseId } }), (g) => g.name).map((g) => ({ id: g.id, name: g.name })) : [];
-  return { view, groups, role: access.role, staff: access.staff, course: { id: access.course.id, code: access.course.code } };
+  // after "Copy this practical" the new practical's page says what the copy holds and what comes next
+  const copied = access.staff && new URL(request.url).searchParams.has("copied");
+  return { view, groups, role: access.role, staff: access.staff, copied, course: { id: access.course.id, code: access.course.code } };
 }
 
 type ActionData = { tone: "info" | "error"; message: string; benchId?: number; details?: FormResult; confirmRemove?: boolean };
@@ -89,6 +91,9 @@ export default function PracticalPage({ loaderData, actionData }: Route.Componen
         {view.title}
       </PageTitle>
       {actionData ? <FormMessage tone={actionData.tone}>{actionData.message}</FormMessage> : null}
+      {loaderData.copied && !actionData ? (
+        <FormMessage tone="info">This is the copy, with the benches, set-up and rubric of the practical it came from. Put groups on the benches and tell them when you are ready.</FormMessage>
+      ) : null}
 
       {!staff ? (
         <section aria-labelledby="mine-h" className="rounded border border-rule bg-white p-4">
@@ -108,6 +113,9 @@ export default function PracticalPage({ loaderData, actionData }: Route.Componen
           <nav aria-label="Print" className="mb-6 flex flex-wrap gap-3">
             <Link className="rounded border border-ink-soft px-3 py-1 hover:bg-accent-soft" to={`/sessions/${view.id}/sheets`}>Bench sheets (print)</Link>
             <Link className="rounded border border-ink-soft px-3 py-1 hover:bg-accent-soft" to={`/sessions/${view.id}/prep`}>Prep list (print)</Link>
+            <a className="rounded border border-ink-soft px-3 py-1 hover:bg-accent-soft" href={`/sessions/${view.id}/benches.xlsx`} download>Bench assignment (.xlsx)</a>
+            <a className="rounded border border-ink-soft px-3 py-1 hover:bg-accent-soft" href={`/sessions/${view.id}/benches.csv`} download>Bench assignment (.csv)</a>
+            {isInstructor ? <Link className="rounded border border-ink-soft px-3 py-1 hover:bg-accent-soft" to={`/sessions/${view.id}/copy`}>Copy this practical</Link> : null}
           </nav>
           <nav aria-label="Results" className="mb-6 flex flex-wrap gap-3">
             <Link className="rounded border border-ink-soft px-3 py-1 hover:bg-accent-soft" to={`/sessions/${view.id}/review`}>Review queue</Link>
