@@ -218,7 +218,7 @@ describe("feed designer", () => {
     const form: Record<string, string> = {
       intent: "save", title: "Overfull (test)", date: "2027-03-01", reactionSystemId: String(saponification.id), slotMinutes: "120", setupMinutes: "30",
       reactorVolumeMl: "250", stockAMolL: "0.01", stockBMolL: "0.1", samplingIntervalS: "60", targetConversionPct: "80",
-      fullWithinPct: "10", partialWithinPct: "25", partialFraction: "0.5", analysisWeight: "0.7", latePenaltyPct: "10",
+      fullWithinPct: "10", partialWithinPct: "25", partialFraction: "0.5", analysisMarks: "40", analysisFullWithinPct: "2", analysisPartialWithinPct: "10", analysisPartialFraction: "0.5", latePenaltyPct: "10", correctionCostPct: "10",
       "benches[0].label": "1", "benches[0].CA0": "0.01", "benches[0].CB0": "0.01", "benches[0].temperatureC": "25",
     };
     const before = await LabSession.count();
@@ -239,7 +239,7 @@ describe("feed designer", () => {
     const form: Record<string, string> = {
       intent: "propose", title: "Designed in a test (invented)", date: "2027-03-02", reactionSystemId: String(saponification.id), slotMinutes: "150", setupMinutes: "30",
       reactorVolumeMl: "200", stockAMolL: "0.1", stockBMolL: "0.1", samplingIntervalS: "60", targetConversionPct: "75",
-      fullWithinPct: "10", partialWithinPct: "25", partialFraction: "0.5", analysisWeight: "0.7", latePenaltyPct: "10",
+      fullWithinPct: "10", partialWithinPct: "25", partialFraction: "0.5", analysisMarks: "40", analysisFullWithinPct: "2", analysisPartialWithinPct: "10", analysisPartialFraction: "0.5", latePenaltyPct: "10", correctionCostPct: "10",
       benchCount: "6", CA0: "0.01", ratioMin: "0.5", ratioMax: "2", tempMinC: "20", tempMaxC: "30",
     };
     const proposed = payloadOf(await call(designAction, request(`/courses/${course.id}/sessions/new`, { cookie: instructor, form }), params()));

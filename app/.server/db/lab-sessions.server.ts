@@ -5,14 +5,19 @@ import { getSequelize } from "./sequelize.server";
 import { Course } from "./models.server";
 import { Group } from "./groups.server";
 import { ReactionSystem } from "./reaction-systems.server";
+import { DEFAULT_RUBRIC as MARKING_DEFAULT, type MarkingRubric } from "~/lib/marking/rubric";
 
 export const SESSION_STATUSES = ["draft", "planned", "notified", "closed"] as const;
 export type SessionStatus = (typeof SESSION_STATUSES)[number];
 
 /**
- * Marking rubric (staff only). Deviation of the group's k from the reference at its bench's
- * temperature: within fullWithinPct earns the whole analysis part, within partialWithinPct earns
- * partialFraction of it. analysisWeight + experimentWeight = 1. Late work loses latePenaltyPct.
+ * Marking rubric (staff only), stored flat as the planning form writes it. The experiment check
+ * (marking k against the reference at the bench's temperature) uses fullWithinPct,
+ * partialWithinPct and partialFraction; the analysis check (the group's reported k against their
+ * own straight line) the analysis* bands. experimentWeight + analysisWeight = 1. Late work loses
+ * latePenaltyPct; each slip a reviewer corrected costs correctionCostPct of the mark.
+ * `rubricFrom` (app/lib/marking/rubric.ts) reads it; older rubrics without the analysis bands or
+ * the correction cost take the marking defaults.
  */
 export interface Rubric {
   fullWithinPct: number;
@@ -21,16 +26,32 @@ export interface Rubric {
   analysisWeight: number;
   experimentWeight: number;
   latePenaltyPct: number;
+  analysisFullWithinPct?: number;
+  analysisPartialWithinPct?: number;
+  analysisPartialFraction?: number;
+  correctionCostPct?: number;
 }
 
-export const DEFAULT_RUBRIC: Rubric = {
-  fullWithinPct: 10,
-  partialWithinPct: 25,
-  partialFraction: 0.5,
-  analysisWeight: 0.7,
-  experimentWeight: 0.3,
-  latePenaltyPct: 10,
-};
+/** The marking defaults (60/40 experiment/analysis) in the stored shape: one set of defaults. */
+export const DEFAULT_RUBRIC: Rubric = storedRubric(MARKING_DEFAULT);
+
+/** A marking rubric in the stored (flat) shape, weights as shares of 1. */
+export function storedRubric(r: MarkingRubric): Rubric {
+  const total = r.experiment.weight + r.analysis.weight;
+  const analysisWeight = total > 0 ? Number((r.analysis.weight / total).toFixed(6)) : 0.5;
+  return {
+    fullWithinPct: r.experiment.fullWithinPct,
+    partialWithinPct: r.experiment.partialWithinPct,
+    partialFraction: r.experiment.partialFraction,
+    analysisWeight,
+    experimentWeight: Number((1 - analysisWeight).toFixed(6)),
+    latePenaltyPct: r.latePenaltyPct,
+    analysisFullWithinPct: r.analysis.fullWithinPct,
+    analysisPartialWithinPct: r.analysis.partialWithinPct,
+    analysisPartialFraction: r.analysis.partialFraction,
+    correctionCostPct: r.correctionCostPct,
+  };
+}
 
 export class LabSession extends Model<InferAttributes<LabSession>, InferCreationAttributes<LabSession>> {
   declare id: CreationOptional<number>;

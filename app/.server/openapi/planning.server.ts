@@ -77,9 +77,9 @@ export const planningPart: ApiPart = {
         benches: { type: "array", items: ref("Bench"), description: "every bench for staff; a student's own group's bench only" },
         rubric: {
           type: "object",
-          description: "staff only",
+          description: "staff only. The experiment check's bands (fullWithinPct, partialWithinPct, partialFraction), the weights as shares of 1, the analysis check's bands (analysis*, marking defaults when absent) and the percent of the mark each corrected slip costs",
           required: ["fullWithinPct", "partialWithinPct", "partialFraction", "analysisWeight", "experimentWeight", "latePenaltyPct"],
-          properties: { fullWithinPct: num, partialWithinPct: num, partialFraction: num, analysisWeight: num, experimentWeight: num, latePenaltyPct: num },
+          properties: { fullWithinPct: num, partialWithinPct: num, partialFraction: num, analysisWeight: num, experimentWeight: num, latePenaltyPct: num, analysisFullWithinPct: num, analysisPartialWithinPct: num, analysisPartialFraction: num, correctionCostPct: num },
         },
       },
     },

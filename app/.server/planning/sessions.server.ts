@@ -14,6 +14,9 @@ import { queueMail } from "../mail/outbox.server";
 import { benchProblems, predictBench, proposeBenches, sessionProblems, type BenchFeed, type Problem, type ReactionForDesign, type SessionForDesign } from "~/lib/planning/feed-design";
 import { naturalCompare } from "~/lib/natural-order";
 import { isRealDateTime, isRealDay } from "~/lib/dates";
+import { rubricFrom } from "~/lib/marking/rubric";
+import { marksOutOf } from "~/lib/marking/rubric-view";
+import { rubricExamples } from "~/lib/marking/rubric-example";
 
 const num = (msg: string) => z.number({ error: msg });
 const int = (msg: string) => z.number({ error: msg }).int({ error: "Use a whole number." });
@@ -48,8 +51,13 @@ const sessionFields = {
   fullWithinPct: num("Enter a percentage.").positive({ error: "Use more than 0 %." }),
   partialWithinPct: num("Enter a percentage.").positive({ error: "Use more than 0 %." }),
   partialFraction: num("Enter a fraction from 0 to 1.").min(0, { error: "Use 0 to 1." }).max(1, { error: "Use 0 to 1." }),
-  analysisWeight: num("Enter a weight from 0 to 1.").min(0, { error: "Use 0 to 1." }).max(1, { error: "Use 0 to 1." }),
+  // the analysis check's share as marks out of 100 (the experiment check gets the rest)
+  analysisMarks: num("Enter the analysis check's marks, 0 to 100.").min(0, { error: "Use 0 to 100 marks." }).max(100, { error: "Use 0 to 100 marks." }),
+  analysisFullWithinPct: num("Enter a percentage.").positive({ error: "Use more than 0 %." }),
+  analysisPartialWithinPct: num("Enter a percentage.").positive({ error: "Use more than 0 %." }),
+  analysisPartialFraction: num("Enter a fraction from 0 to 1.").min(0, { error: "Use 0 to 1." }).max(1, { error: "Use 0 to 1." }),
   latePenaltyPct: num("Enter a percentage.").min(0, { error: "Use 0 to 100 %." }).max(100, { error: "Use 0 to 100 %." }),
+  correctionCostPct: num("Enter a percentage.").min(0, { error: "Use 0 to 100 %." }).max(100, { error: "Use 0 to 100 %." }),
 };
 
 const designFields = {
@@ -61,10 +69,27 @@ const designFields = {
   tempMaxC: num("Enter the highest temperature in °C.").min(0, { error: "Use 0 to 100 °C." }).max(100, { error: "Use 0 to 100 °C." }),
 };
 
-function sessionRules(s: { slotMinutes?: number; setupMinutes?: number; fullWithinPct?: number; partialWithinPct?: number }, ctx: z.RefinementCtx) {
+function sessionRules(s: { slotMinutes?: number; setupMinutes?: number; fullWithinPct?: number; partialWithinPct?: number; analysisFullWithinPct?: number; analysisPartialWithinPct?: number }, ctx: z.RefinementCtx) {
   if (s.slotMinutes !== undefined && s.setupMinutes !== undefined && s.setupMinutes >= s.slotMinutes) ctx.addIssue({ code: "custom", path: ["setupMinutes"], message: "Set-up must leave time for the run inside the slot." });
   if (s.fullWithinPct !== undefined && s.partialWithinPct !== undefined && s.partialWithinPct < s.fullWithinPct) ctx.addIssue({ code: "custom", path: ["partialWithinPct"], message: "Partial marks must reach at least as far as full marks." });
+  if (s.analysisFullWithinPct !== undefined && s.analysisPartialWithinPct !== undefined && s.analysisPartialWithinPct < s.analysisFullWithinPct) ctx.addIssue({ code: "custom", path: ["analysisPartialWithinPct"], message: "Partial marks must reach at least as far as full marks." });
 }
+
+/** The rubric fields alone (the planning form's live example checks only these). */
+export const rubricSchema = z
+  .object({
+    fullWithinPct: sessionFields.fullWithinPct,
+    partialWithinPct: sessionFields.partialWithinPct,
+    partialFraction: sessionFields.partialFraction,
+    analysisMarks: sessionFields.analysisMarks,
+    analysisFullWithinPct: sessionFields.analysisFullWithinPct,
+    analysisPartialWithinPct: sessionFields.analysisPartialWithinPct,
+    analysisPartialFraction: sessionFields.analysisPartialFraction,
+    latePenaltyPct: sessionFields.latePenaltyPct,
+    correctionCostPct: sessionFields.correctionCostPct,
+  })
+  .superRefine(sessionRules);
+export type RubricInput = z.output<typeof rubricSchema>;
 
 /** "propose" needs the session and design fields; "save" needs the session fields and the benches. */
 export const proposeSchema = z.object({ ...sessionFields, ...designFields }).superRefine(sessionRules);
@@ -73,6 +98,19 @@ export const saveSchema = z
   .superRefine(sessionRules);
 
 export type SaveInput = z.output<typeof saveSchema>;
+
+export function parseRubricForm(form: FormData) {
+  return parseWithZod(form, { schema: rubricSchema });
+}
+
+/** What a stored rubric gives the invented example runs on this reaction system (staff only). */
+export function rubricExampleFor(rs: ReactionSystem, rubric: Rubric) {
+  const marking = rubricFrom(rubric);
+  return {
+    outOf: marksOutOf(marking),
+    runs: rubricExamples({ a: rs.coeffA, b: rs.coeffB, orderA: rs.orderA, orderB: rs.orderB, kRef: rs.kRef, TrefC: rs.TrefC }, marking),
+  };
+}
 
 export function parseDesignForm(form: FormData, intent: "propose" | "save") {
   return parseWithZod(form, { schema: intent === "propose" ? proposeSchema : saveSchema });
@@ -113,14 +151,36 @@ export function courseReaction(courseId: number, id: number) {
   return ReactionSystem.findOne({ where: { id, courseId } });
 }
 
-function rubricOf(input: SaveInput): Rubric {
+/** The form's rubric in the stored shape (the analysis marks out of 100 as a share of 1). */
+export function rubricOf(input: RubricInput): Rubric {
+  const analysisWeight = Number((input.analysisMarks / 100).toFixed(6));
   return {
     fullWithinPct: input.fullWithinPct,
     partialWithinPct: input.partialWithinPct,
     partialFraction: input.partialFraction,
-    analysisWeight: input.analysisWeight,
-    experimentWeight: Number((1 - input.analysisWeight).toFixed(6)),
+    analysisWeight,
+    experimentWeight: Number((1 - analysisWeight).toFixed(6)),
     latePenaltyPct: input.latePenaltyPct,
+    analysisFullWithinPct: input.analysisFullWithinPct,
+    analysisPartialWithinPct: input.analysisPartialWithinPct,
+    analysisPartialFraction: input.analysisPartialFraction,
+    correctionCostPct: input.correctionCostPct,
+  };
+}
+
+/** The planning form's rubric fields (strings) for a stored rubric, e.g. the defaults. */
+export function rubricFormValues(r: Rubric): Record<string, string> {
+  const m = rubricFrom(r);
+  return {
+    fullWithinPct: String(m.experiment.fullWithinPct),
+    partialWithinPct: String(m.experiment.partialWithinPct),
+    partialFraction: String(m.experiment.partialFraction),
+    analysisMarks: String(marksOutOf(m).analysis),
+    analysisFullWithinPct: String(m.analysis.fullWithinPct),
+    analysisPartialWithinPct: String(m.analysis.partialWithinPct),
+    analysisPartialFraction: String(m.analysis.partialFraction),
+    latePenaltyPct: String(m.latePenaltyPct),
+    correctionCostPct: String(m.correctionCostPct),
   };
 }
 

@@ -19,6 +19,8 @@ export interface MarkingRubric {
   analysis: CheckBands;
   /** percent of the mark taken off a late submission */
   latePenaltyPct: number;
+  /** percent of the mark taken off for each slip a reviewer corrected (unit, columns, a reading) */
+  correctionCostPct: number;
 }
 
 // Defaults: common practice, no source (a tenth for the experiment, a few percent for arithmetic).
@@ -26,6 +28,7 @@ export const DEFAULT_RUBRIC: MarkingRubric = {
   experiment: { weight: 60, fullWithinPct: 10, partialWithinPct: 25, partialFraction: 0.5 },
   analysis: { weight: 40, fullWithinPct: 2, partialWithinPct: 10, partialFraction: 0.5 },
   latePenaltyPct: 10,
+  correctionCostPct: 10,
 };
 
 type Obj = Record<string, unknown>;
@@ -51,6 +54,7 @@ function bands(v: unknown, d: CheckBands, aliases: { weight?: string[]; full?: s
  * ({ fullWithinPct, partialWithinPct, partialFraction, experimentWeight, analysisWeight,
  * latePenaltyPct }), whose bands are the experiment check's; the analysis check then keeps its
  * own default bands unless analysisFullWithinPct / analysisPartialWithinPct are given.
+ * correctionCostPct is the practical's price of a slip a reviewer corrected.
  */
 export function rubricFrom(json: unknown): MarkingRubric {
   const o = isObj(json) ? json : {};
@@ -60,5 +64,6 @@ export function rubricFrom(json: unknown): MarkingRubric {
     experiment: bands(o.experiment ?? o.experimentCheck ?? flatExperiment, DEFAULT_RUBRIC.experiment),
     analysis: bands(o.analysis ?? o.analysisCheck ?? flatAnalysis, DEFAULT_RUBRIC.analysis),
     latePenaltyPct: num(o.latePenaltyPct ?? o.latePenalty, DEFAULT_RUBRIC.latePenaltyPct, (x) => x >= 0 && x <= 100),
+    correctionCostPct: num(o.correctionCostPct, DEFAULT_RUBRIC.correctionCostPct, (x) => x >= 0 && x <= 100),
   };
 }

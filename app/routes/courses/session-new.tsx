@@ -13,11 +13,18 @@ import {
   createSession,
   groupProblems,
   parseDesignForm,
+  parseRubricForm,
+  rubricOf,
   predictBench,
   proposeBenches,
   reactionForDesign,
+  rubricExampleFor,
+  rubricFormValues,
   sessionForDesign,
 } from "~/.server/planning/sessions.server";
+import type { RubricExample } from "~/lib/marking/rubric-example";
+import { partText } from "~/lib/marking/rubric-view";
+import { sig } from "~/lib/format";
 import type { BenchFeed, BenchPrediction, Problem } from "~/lib/planning/feed-design";
 import { fieldError, typed, type FormResult } from "~/lib/form-result";
 import { minutes, mL } from "~/lib/planning/format";
@@ -34,6 +41,8 @@ export async function loader({ request, params }: Route.LoaderArgs) {
   return {
     course: { id: course.id, code: course.code, title: course.title },
     systems: systems.map((s) => ({ id: s.id, name: s.name, a: s.coeffA, b: s.coeffB, speciesA: s.speciesA, speciesB: s.speciesB })),
+    // what the default rubric gives the example runs on the first reaction system (staff only page)
+    example: systems.length ? rubricExampleFor(systems[0], DEFAULT_RUBRIC) : null,
     defaults: {
       date: new Date(Date.now() + 14 * 86400e3).toISOString().slice(0, 10),
       slotMinutes: "180",
@@ -49,17 +58,26 @@ export async function loader({ request, params }: Route.LoaderArgs) {
       ratioMax: "2",
       tempMinC: "20",
       tempMaxC: "35",
-      ...Object.fromEntries(Object.entries(DEFAULT_RUBRIC).map(([k, v]) => [k, String(v)])),
+      ...rubricFormValues(DEFAULT_RUBRIC),
     } as Record<string, string>,
   };
 }
 
 type Row = BenchFeed & { prediction: BenchPrediction | null };
 type ActionData = { result: FormResult; rows: Row[] | null; proposal: number; formErrors: string[] };
+type ExampleAnswer = { example: RubricExampleView | null; problem: string | null };
+type RubricExampleView = { outOf: { experiment: number; analysis: number }; runs: RubricExample[] };
 
 export async function action({ request, params }: Route.ActionArgs) {
   const { user, course } = await requireCourseFromPath(request, params.courseId, ["instructor"]);
   const form = await readForm(request);
+  if (form.get("intent") === "example") {
+    // the live example of the rubric being edited: the real marking on invented runs
+    const rs = await courseReaction(course.id, Number(form.get("reactionSystemId")));
+    const parsed = parseRubricForm(form);
+    if (!rs || parsed.status !== "success") return data<ExampleAnswer>({ example: null, problem: rs ? "Fix the rubric's fields to see the example." : "Choose a reaction system." });
+    return data<ExampleAnswer>({ example: rubricExampleFor(rs, rubricOf(parsed.value)), problem: null });
+  }
   const intent = form.get("intent") === "save" ? "save" : "propose";
   const submission = parseDesignForm(form, intent);
   const proposal = Number(form.get("proposal") ?? 0);
@@ -92,13 +110,16 @@ export async function action({ request, params }: Route.ActionArgs) {
   throw redirect(`/sessions/${saved.value.id}`);
 }
 
+const RUBRIC_FIELDS = ["fullWithinPct", "partialWithinPct", "partialFraction", "analysisMarks", "analysisFullWithinPct", "analysisPartialWithinPct", "analysisPartialFraction", "latePenaltyPct", "correctionCostPct"];
+
 interface CheckAnswer {
   problems: Problem[];
   benches: Array<BenchPrediction | null>;
 }
 
-export default function DesignPractical({ loaderData, actionData }: Route.ComponentProps) {
+export default function DesignPractical({ loaderData, actionData: answer }: Route.ComponentProps) {
   const { course, systems, defaults } = loaderData;
+  const actionData = answer && "result" in answer ? (answer as ActionData) : undefined;
   const result = actionData?.result;
   const busy = useNavigation().state === "submitting";
   const v = (name: string) => typed(result, name) ?? defaults[name];
@@ -107,11 +128,24 @@ export default function DesignPractical({ loaderData, actionData }: Route.Compon
   const proposal = actionData?.proposal ?? 0;
   useEffect(() => setRows(actionData?.rows ?? []), [actionData]);
   const check = useFetcher<CheckAnswer>();
+  const exampleFetcher = useFetcher<ExampleAnswer>();
+  const example = exampleFetcher.data ? exampleFetcher.data.example : loaderData.example;
   const formRef = useRef<HTMLFormElement>(null);
+  const [analysisTyped, setAnalysisMarks] = useState(Number(v("analysisMarks")));
+  const analysisMarks = Number.isFinite(analysisTyped) && analysisTyped >= 0 && analysisTyped <= 100 ? analysisTyped : null;
   const timer = useRef<ReturnType<typeof setTimeout> | null>(null);
 
-  // Rerun the checks on the server as the instructor types (no reload).
+  const exampleTimer = useRef<ReturnType<typeof setTimeout> | null>(null);
+  // Rerun the checks on the server as the instructor types (no reload); the rubric's example too.
   function recheck() {
+    if (exampleTimer.current) clearTimeout(exampleTimer.current);
+    exampleTimer.current = setTimeout(() => {
+      const f = new FormData(formRef.current!);
+      const body = new FormData();
+      for (const k of [...RUBRIC_FIELDS, "reactionSystemId"]) body.set(k, String(f.get(k) ?? ""));
+      body.set("intent", "example");
+      exampleFetcher.submit(body, { method: "post" });
+    }, 300);
     if (timer.current) clearTimeout(timer.current);
     timer.current = setTimeout(() => {
       const f = new FormData(formRef.current!);
@@ -198,14 +232,48 @@ export default function DesignPractical({ loaderData, actionData }: Route.Compon
               </div>
               <Button name="intent" value="propose" busy={busy}>Propose benches</Button>
             </fieldset>
-            <fieldset className="rounded border border-rule bg-white p-4">
-              <legend className="px-1 text-lg font-bold">Marking rubric</legend>
+            <fieldset className="rounded border border-rule bg-white p-4" aria-describedby="rubric-note">
+              <legend className="px-1 text-lg font-bold">Marking rubric (marks out of 100)</legend>
+              <p id="rubric-note" className="mb-3 text-sm text-ink-soft">Two checks share the 100 marks. A deviation within the first band earns the check's marks, within the second its partial share, beyond it none.</p>
+              <h3 className="font-bold">Experiment check: {analysisMarks === null ? "—" : sig(100 - analysisMarks, 4)} marks</h3>
+              <p className="mb-2 text-sm text-ink-soft">The marking k against the reference k at the bench's temperature.</p>
               <div className="grid grid-cols-2 gap-x-4">
-                <Field label="Full marks within (%)" name="fullWithinPct" inputMode="decimal" defaultValue={v("fullWithinPct")} error={e("fullWithinPct")} />
-                <Field label="Partial marks within (%)" name="partialWithinPct" inputMode="decimal" defaultValue={v("partialWithinPct")} error={e("partialWithinPct")} />
-                <Field label="Partial fraction (0–1)" name="partialFraction" inputMode="decimal" defaultValue={v("partialFraction")} error={e("partialFraction")} />
-                <Field label="Analysis weight (0–1)" name="analysisWeight" inputMode="decimal" defaultValue={v("analysisWeight")} error={e("analysisWeight")} hint="the experiment gets the rest" />
-                <Field label="Late penalty (%)" name="latePenaltyPct" inputMode="decimal" defaultValue={v("latePenaltyPct")} error={e("latePenaltyPct")} />
+                <Field label="Experiment: full marks within (%)" name="fullWithinPct" inputMode="decimal" defaultValue={v("fullWithinPct")} error={e("fullWithinPct")} hint="of the reference k; applies to the experiment check only" />
+                <Field label="Experiment: partial marks within (%)" name="partialWithinPct" inputMode="decimal" defaultValue={v("partialWithinPct")} error={e("partialWithinPct")} />
+                <Field label="Experiment: partial share (0–1)" name="partialFraction" inputMode="decimal" defaultValue={v("partialFraction")} error={e("partialFraction")} hint="of the experiment marks" />
+              </div>
+              <h3 className="mt-2 font-bold">Analysis check: {analysisMarks === null ? "—" : sig(analysisMarks, 4)} marks</h3>
+              <p className="mb-2 text-sm text-ink-soft">The group's reported k against the k of their own straight line.</p>
+              <div className="grid grid-cols-2 gap-x-4">
+                <Field label="Analysis marks (of 100)" name="analysisMarks" inputMode="decimal" defaultValue={v("analysisMarks")} error={e("analysisMarks")} hint="the experiment check gets the rest" onInput={(ev) => setAnalysisMarks(Number((ev.target as HTMLInputElement).value))} />
+                <Field label="Analysis: full marks within (%)" name="analysisFullWithinPct" inputMode="decimal" defaultValue={v("analysisFullWithinPct")} error={e("analysisFullWithinPct")} hint="of the group's own straight-line k" />
+                <Field label="Analysis: partial marks within (%)" name="analysisPartialWithinPct" inputMode="decimal" defaultValue={v("analysisPartialWithinPct")} error={e("analysisPartialWithinPct")} />
+                <Field label="Analysis: partial share (0–1)" name="analysisPartialFraction" inputMode="decimal" defaultValue={v("analysisPartialFraction")} error={e("analysisPartialFraction")} hint="of the analysis marks" />
+              </div>
+              <h3 className="mt-2 font-bold">Late work and corrected slips</h3>
+              <div className="grid grid-cols-2 gap-x-4">
+                <Field label="Late penalty (% of the mark)" name="latePenaltyPct" inputMode="decimal" defaultValue={v("latePenaltyPct")} error={e("latePenaltyPct")} />
+                <Field label="Each corrected slip costs (% of the mark)" name="correctionCostPct" inputMode="decimal" defaultValue={v("correctionCostPct")} error={e("correctionCostPct")} hint="a unit, the columns or a reading a reviewer corrected" />
+              </div>
+              <div aria-live="polite" data-testid="rubric-example" className="mt-2">
+                <h3 className="font-bold">What this rubric gives (invented runs, marked by the engine)</h3>
+                {example ? (
+                  <TableBox label="Example marks under this rubric">
+                    <table className="w-full border-collapse text-left text-sm">
+                      <thead><tr className="border-b-2 border-ink"><th className="px-2 py-1">Run</th><th className="px-2 py-1 text-right">Experiment</th><th className="px-2 py-1 text-right">Analysis</th><th className="px-2 py-1 text-right">Mark</th></tr></thead>
+                      <tbody>
+                        {example.runs.map((r) => (
+                          <tr key={r.key} className="border-b border-rule" data-example={r.key}>
+                            <td className="px-2 py-1">{r.label}</td>
+                            <td className="num px-2 py-1">{partText(r.experimentPart, example.outOf.experiment)}</td>
+                            <td className="num px-2 py-1">{partText(r.analysisPart, example.outOf.analysis)}</td>
+                            <td className="num px-2 py-1 font-bold" data-example-mark={r.mark}>{sig(r.mark, 4)} of 100{r.correctionCost ? ` (−${sig(r.correctionCost, 3)} for the correction)` : ""}</td>
+                          </tr>
+                        ))}
+                      </tbody>
+                    </table>
+                  </TableBox>
+                ) : <p className="text-sm text-ink-soft">{exampleFetcher.data?.problem ?? "Choose a reaction system to see the example."}</p>}
               </div>
             </fieldset>
           </div>
