@@ -4,6 +4,7 @@ import { CourseMembership, sequelize, User as UserModel, type User } from "../db
 import { Group, GroupMember } from "../db/groups.server";
 import { recordAudit } from "../audit.server";
 import { naturalCompare } from "~/lib/natural-order";
+import { GROUP_ORDERS, orderForGroups, type GroupOrder } from "~/lib/planning/group-order";
 
 export interface MyGroup {
   id: number;
@@ -49,7 +50,7 @@ export async function courseGroups(courseId: number) {
     })),
     ungrouped: students
       .filter((s) => !grouped.has(s.userId))
-      .map((s) => ({ userId: s.userId, name: s.user!.displayName, studentNumber: s.studentNumber }))
+      .map((s) => ({ userId: s.userId, name: s.user!.displayName, studentNumber: s.studentNumber, rosterIndex: s.id }))
       .sort((a, b) => a.name.localeCompare(b.name)),
     students: students.map((s) => ({ userId: s.userId, name: s.user!.displayName })).sort((a, b) => a.name.localeCompare(b.name)),
   };
@@ -114,10 +115,17 @@ export async function deleteGroup(actor: User, courseId: number, groupId: number
   return { ok: true, message: `Group ${group.name} deleted.` };
 }
 
-/** Puts every student who is in no group into new groups of `size` (the last may be smaller). */
-export async function formGroups(actor: User, courseId: number, size: number): Promise<Result> {
+/**
+ * Puts every student who is in no group into new groups of `size` (the last may be smaller), taken
+ * by name, in roster order, or shuffled with `seed` (the same seed forms the same groups again).
+ */
+export async function formGroups(actor: User, courseId: number, size: number, order: unknown = "name", seedText: unknown = ""): Promise<Result> {
   if (!Number.isInteger(size) || size < 1 || size > 20) return { ok: false, field: "size", message: "Choose a group size from 1 to 20." };
-  const { ungrouped, groups } = await courseGroups(courseId);
+  if (!GROUP_ORDERS.includes(order as GroupOrder)) return { ok: false, field: "order", message: "Choose by name, in roster order or shuffled." };
+  const seed = Number(String(seedText ?? "").trim());
+  if (order === "shuffled" && !(Number.isInteger(seed) && seed >= 1 && seed <= 999_999)) return { ok: false, field: "seed", message: "Give a seed from 1 to 999999 (a whole number)." };
+  const { ungrouped: found, groups } = await courseGroups(courseId);
+  const ungrouped = orderForGroups(found, order as GroupOrder, seed);
   if (!ungrouped.length) return { ok: false, field: "size", message: "Every student is already in a group." };
   const names = new Set(groups.map((g) => g.name));
   let next = 1;
@@ -133,7 +141,8 @@ export async function formGroups(actor: User, courseId: number, size: number): P
       made++;
       for (const s of ungrouped.slice(i, i + size)) await GroupMember.create({ groupId: g.id, courseId, userId: s.userId }, { transaction });
     }
-    await recordAudit({ actorId: actor.id, action: "group.formed", entityType: "course", entityId: courseId, after: { groups: made, size } }, transaction);
+    await recordAudit({ actorId: actor.id, action: "group.formed", entityType: "course", entityId: courseId, after: { groups: made, size, order, ...(order === "shuffled" ? { seed } : {}) } }, transaction);
   });
-  return { ok: true, message: `${made} group(s) of up to ${size} formed from ${ungrouped.length} student(s).` };
+  const how = order === "shuffled" ? `, shuffled with seed ${seed} (the same seed forms the same groups again)` : order === "roster" ? ", in roster order" : ", by name";
+  return { ok: true, message: `${made} group(s) of up to ${size} formed from ${ungrouped.length} student(s)${how}.` };
 }

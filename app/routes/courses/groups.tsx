@@ -6,7 +6,8 @@ import { requireCourseFromPath } from "~/.server/guards.server";
 import { formId } from "~/.server/ids.server";
 import { readForm } from "~/.server/body.server";
 import { courseGroups, createGroup, deleteGroup, formGroups, moveStudent, renameGroup } from "~/.server/planning/groups.server";
-import { Button, Field, FormMessage } from "~/components/form";
+import { Button, Field, FormMessage, SelectField } from "~/components/form";
+import { GROUP_ORDERS, GROUP_ORDER_TEXT, newSeed } from "~/lib/planning/group-order";
 import { PageTitle } from "~/components/page";
 import { trailFor } from "~/lib/place";
 
@@ -14,7 +15,8 @@ export const meta: Route.MetaFunction = () => [{ title: "Groups · Ratebook" }];
 
 export async function loader({ request, params }: Route.LoaderArgs) {
   const { course, role } = await requireCourseFromPath(request, params.courseId, ["instructor", "demonstrator"]);
-  return { course: { id: course.id, code: course.code }, canEdit: role === "instructor", ...(await courseGroups(course.id)) };
+  // a fresh seed is offered for a shuffle; the message after forming repeats the one used
+  return { course: { id: course.id, code: course.code }, canEdit: role === "instructor", seed: newSeed(), ...(await courseGroups(course.id)) };
 }
 
 type ActionData = { intent: string; ok: boolean; field: string; message: string; groupId: number | null };
@@ -33,7 +35,7 @@ export async function action({ request, params }: Route.ActionArgs) {
     const userId = formId(form, "userId");
     const target = form.get("groupId") === "" ? null : groupId;
     r = userId === null ? { ok: false, field: "form", message: "Which student?" } : await moveStudent(user, course.id, userId, target);
-  } else if (intent === "form") r = await formGroups(user, course.id, Number(form.get("size")));
+  } else if (intent === "form") r = await formGroups(user, course.id, Number(form.get("size")), form.get("order") ?? "name", form.get("seed"));
   else r = { ok: false, field: "form", message: `Unknown action "${intent}".` };
   const body: ActionData = { intent, groupId, ok: r.ok, field: r.ok ? "" : r.field, message: r.message };
   return data(body, { status: r.ok ? 200 : 400 });
@@ -115,10 +117,12 @@ export default function Groups({ loaderData, actionData }: Route.ComponentProps)
             </section>
             <section aria-labelledby="auto-h" className="rounded border border-rule bg-white p-4">
               <h2 id="auto-h" className="mb-3 text-xl font-bold">Form groups automatically</h2>
-              <p className="mb-2 text-sm">Puts the {ungrouped.length} student(s) in no group into new groups of this size, by name.</p>
+              <p className="mb-2 text-sm">Puts the {ungrouped.length} student(s) in no group into new groups of this size, in the order you choose.</p>
               <Form method="post" noValidate>
                 <input type="hidden" name="intent" value="form" />
                 <Field label="Group size" name="size" inputMode="numeric" defaultValue="2" error={err("form", "size")} />
+                <SelectField label="Order" name="order" options={[...GROUP_ORDERS]} labels={GROUP_ORDER_TEXT} defaultValue="name" error={err("form", "order")} />
+                <Field label="Seed for a shuffle" name="seed" inputMode="numeric" defaultValue={String(loaderData.seed)} error={err("form", "seed")} hint="Used only when shuffled; the same seed forms the same groups again." />
                 <Button busy={busy}>Form groups</Button>
               </Form>
             </section>
