@@ -279,7 +279,7 @@ function runChild(cmd: string, argv: string[]): Promise<{ code: number | null; o
 async function startWorkerProcess(): Promise<ChildProcess> {
   const child = spawn(path.join(projectRoot, "node_modules", ".bin", "tsx"), ["scripts/worker.ts"], {
     cwd: projectRoot,
-    env: { ...process.env, WORKER_CONCURRENCY, NODE_ENV: "production" },
+    env: { ...process.env, WORKER_CONCURRENCY, NODE_ENV: "production", APP_URL: BENCH_BASE, SESSION_COOKIE_SECURE: "0" },
     stdio: ["ignore", "pipe", "inherit"],
   });
   await new Promise<void>((resolve, reject) => {

@@ -3,6 +3,8 @@
 // everything in one transaction, with an invitation for each person new to Ratebook.
 import Papa from "papaparse";
 import ExcelJS from "exceljs";
+import { checkCsvBounds, CsvBoundsError, ROSTER_CSV_LIMITS } from "~/lib/readings/csv-bounds";
+import { pickDelimiter } from "~/lib/readings/csv";
 import { checkXlsxBounds, ROSTER_XLSX_LIMITS, XlsxBoundsError } from "~/.server/readings/xlsx-bounds.server";
 import { Op } from "sequelize";
 import { CourseMembership, User, Course, sequelize } from "../db/models.server";
@@ -51,15 +53,17 @@ export async function readTable(fileName: string, bytes: Uint8Array): Promise<st
   if (bytes.length > ROSTER_MAX_BYTES) throw new RosterFileError(`${fileName} is ${(bytes.length / 1048576).toFixed(1)} MiB; a roster may be at most 2 MiB.`);
   const isZip = bytes[0] === 0x50 && bytes[1] === 0x4b;
   if (isZip) {
+    let archive: Uint8Array;
     try {
-      await checkXlsxBounds(bytes, fileName, ROSTER_XLSX_LIMITS);
+      // exceljs reads only the checked parts, repacked (see xlsx-bounds.server.ts)
+      archive = (await checkXlsxBounds(bytes, fileName, ROSTER_XLSX_LIMITS)).archive;
     } catch (error) {
       if (error instanceof XlsxBoundsError) throw new RosterFileError(error.message);
       throw error;
     }
     const wb = new ExcelJS.Workbook();
     try {
-      await wb.xlsx.load(bytes.buffer.slice(bytes.byteOffset, bytes.byteOffset + bytes.byteLength) as ArrayBuffer);
+      await wb.xlsx.load(archive.buffer.slice(archive.byteOffset, archive.byteOffset + archive.byteLength) as ArrayBuffer);
     } catch {
       throw new RosterFileError(`${fileName} is a zip file but not a readable .xlsx workbook.`);
     }
@@ -83,6 +87,12 @@ export async function readTable(fileName: string, bytes: Uint8Array): Promise<st
     text = new TextDecoder("utf-8", { fatal: true }).decode(bytes).replace(/^\uFEFF/, "");
   } catch {
     throw new RosterFileError(`${fileName} is not UTF-8 text; save the roster as CSV UTF-8 or .xlsx.`);
+  }
+  try {
+    checkCsvBounds(text, pickDelimiter(text.split(/\r\n|\r|\n/).filter((l) => l.trim() !== "")), fileName, ROSTER_CSV_LIMITS);
+  } catch (error) {
+    if (error instanceof CsvBoundsError) throw new RosterFileError(error.message);
+    throw error;
   }
   const parsed = Papa.parse<string[]>(text, { skipEmptyLines: false });
   return parsed.data.map((r) => r.map((c) => String(c ?? "").trim()));

@@ -5,6 +5,7 @@ import Papa from "papaparse";
 import type { RawTable } from "./table.ts";
 import { splitDecimalMessage, splitDecimalRow } from "./decimal-comma.ts";
 import { convertTimeColumns } from "./clock-times.ts";
+import { checkCsvBounds, CsvBoundsError, READINGS_CSV_LIMITS } from "./csv-bounds.ts";
 
 export class Refusal extends Error {
   constructor(message: string) {
@@ -101,6 +102,12 @@ export function readCsv(bytes: Uint8Array, fileName = "the file", options: ReadO
   if (text.trim() === "") throw new Refusal(`${fileName} holds only blank lines. Export the readings again and upload the new file.`);
   const lines = text.split(/\r\n|\r|\n/).filter((l) => l.trim() !== "");
   const delimiter = pickDelimiter(lines);
+  try {
+    checkCsvBounds(text, delimiter, fileName, READINGS_CSV_LIMITS);
+  } catch (error) {
+    if (error instanceof CsvBoundsError) throw new Refusal(error.message);
+    throw error;
+  }
   const parsed = Papa.parse<string[]>(text, { delimiter, skipEmptyLines: false, newline: undefined });
   // Papa gives one record per line (quoted line breaks aside); line numbers follow records.
   const rows: RawTable["rows"] = parsed.data.map((cells, i) => ({ rowNumber: i + 1, cells: cells.map((c) => (c.trim() === "" ? null : c)) }));
