@@ -125,6 +125,33 @@ describe("a practical's gradebook", () => {
   });
 });
 
+/** Whether the element lies wholly inside the scrolling box's visible part. */
+async function inBox(page: Page, name: RegExp, boxLabel: RegExp) {
+  const box = (await page.getByRole("region", { name: boxLabel }).boundingBox())!;
+  const cell = (await page.getByRole("columnheader", { name }).boundingBox())!;
+  return cell.x >= box.x - 1 && cell.x + cell.width <= box.x + box.width + 1;
+}
+
+describe("the deciding column stays in view", () => {
+  test("the group and the mark are pinned: both in view without scrolling sideways at 1280 and 390 px, also when scrolled", async () => {
+    for (const width of [1280, 390]) {
+      const context = await contextWithCookie(browser, server.url, cookie, { width, height: 844 });
+      const page = await context.newPage();
+      await page.goto(`${server.url}/sessions/${p.session.id}/gradebook`, { waitUntil: "networkidle" });
+      await live(page);
+      const boxLabel = /^Gradebook of this practical/;
+      expect(await inBox(page, /^Group/, boxLabel), `group at ${width}`).toBe(true);
+      expect(await inBox(page, /^Mark \(%\)/, boxLabel), `mark at ${width}`).toBe(true);
+      // scrolled sideways to the middle, both are still there
+      await page.getByRole("region", { name: boxLabel }).evaluate((el) => el.scrollBy({ left: 400 }));
+      expect(await inBox(page, /^Group/, boxLabel)).toBe(true);
+      expect(await inBox(page, /^Mark \(%\)/, boxLabel)).toBe(true);
+      await page.screenshot({ path: path.join(shots, `session-pinned-${width}.png`), fullPage: true });
+      await context.close();
+    }
+  });
+});
+
 describe("a course's gradebook with 600 students", () => {
   test("the server sends the first rows only, without style attributes", async () => {
     const res = await fetch(`${server.url}/courses/${p.course.id}/gradebook`, { headers: { Cookie: cookie } });

@@ -43,7 +43,7 @@ function courseColumns(sessions: CourseGradebookSession[], zero: boolean): Array
     { id: "group", label: "Group", width: "w-24", text: (r) => r.group ?? "", cell: (r) => r.group ?? <Missing reason="in no group" /> },
     ...sessions.map((s) => practicalColumn(s, zero)),
     {
-      id: "total", label: "Total", unit: "(%, weighted)", width: "w-28", numeric: true,
+      id: "total", label: "Total", unit: "(%, weighted)", width: "w-28", numeric: true, pin: "end",
       value: (r) => r.total,
       text: (r) => (r.total === null ? "no total yet" : percentText(r.total)),
       cell: (r) => (r.total === null ? <Missing reason="no total yet" /> : <span className="font-bold">{percentText(r.total)}</span>),

@@ -1,6 +1,7 @@
 // The gradebooks' table: sorting by a column, a filter box per column, a search box, a choice of
 // columns, and the person's view of it remembered on the server; rows virtualised (only those in
-// view and a few around them are in the page), so 600 rows scroll smoothly; sticky header.
+// view and a few around them are in the page), so 600 rows scroll smoothly; sticky header; the
+// name pinned left and the deciding column (mark, total) pinned right.
 //
 // Server-rendered with its first rows: the virtualiser starts from `initialRect` until it can
 // measure its box. No style attribute is ever rendered (the CSP has no 'unsafe-inline' for
@@ -43,6 +44,11 @@ export interface GradeColumn<Row> {
   filter?: "text" | "yes-no";
   /** false: always shown (the column that names the row) */
   hideable?: boolean;
+  /**
+   * "end": the column that decides (the mark) is drawn last and pinned to the box's right edge, so
+   * it is in view beside the pinned name at any width without scrolling sideways; always shown.
+   */
+  pin?: "end";
 }
 
 interface Props<Row> {
@@ -73,7 +79,7 @@ function toColumnDef<Row>(c: GradeColumn<Row>): ColumnDef<Row, unknown> {
     sortingFn: c.value ? "basic" : "alphanumeric",
     sortUndefined: "last",
     sortDescFirst: false,
-    enableHiding: c.hideable !== false,
+    enableHiding: c.hideable !== false && c.pin !== "end",
     filterFn: (row, _id, filterValue: string) => {
       if (c.filter === "yes-no") return filterValue === "" || (c.value?.(row.original) === 1) === (filterValue === "yes");
       const text = c.text(row.original);
@@ -90,7 +96,7 @@ function sortMark(dir: false | "asc" | "desc") {
 export function DataTable<Row>({ tableKey, label, rows, columns, rowId, searchText, searchLabel, noun, initialView, rowHeight = 37 }: Props<Row>) {
   const ids = useMemo(() => new Set(columns.map((c) => c.id)), [columns]);
   const metaOf = useMemo(() => new Map(columns.map((c) => [c.id, c])), [columns]);
-  const defs = useMemo(() => columns.map(toColumnDef), [columns]);
+  const defs = useMemo(() => [...columns.filter((c) => c.pin !== "end"), ...columns.filter((c) => c.pin === "end")].map(toColumnDef), [columns]);
 
   const [sorting, setSorting] = useState<SortingState>(() => initialView.sort.filter((s) => ids.has(s.id)).slice(0, 1));
   const [columnFilters, setColumnFilters] = useState<ColumnFiltersState>(() => initialView.filters.filter((f) => ids.has(f.id) && f.value !== ""));
@@ -222,7 +228,7 @@ export function DataTable<Row>({ tableKey, label, rows, columns, rowId, searchTe
                     key={header.id}
                     scope="col"
                     aria-sort={dir === "asc" ? "ascending" : dir === "desc" ? "descending" : "none"}
-                    className={`sticky top-0 bg-white px-2 pt-2 pb-1.5 align-bottom shadow-[inset_0_-2px_0_var(--color-ink)] ${i === 0 ? "left-0 z-30" : "z-20"}`}
+                    className={`sticky top-0 bg-white px-2 pt-2 pb-1.5 align-bottom ${meta.pin === "end" ? "right-0 z-30 shadow-[inset_2px_0_0_var(--color-rule),inset_0_-2px_0_var(--color-ink)]" : `shadow-[inset_0_-2px_0_var(--color-ink)] ${i === 0 ? "left-0 z-30" : "z-20"}`}`}
                   >
                     <div className={meta.width}>
                       <button type="button" onClick={header.column.getToggleSortingHandler()} className={`flex w-full items-end gap-1 font-bold hover:text-accent ${meta.numeric ? "justify-end text-right" : "text-left"}`}>
@@ -258,7 +264,7 @@ export function DataTable<Row>({ tableKey, label, rows, columns, rowId, searchTe
                   {row.getVisibleCells().map((cell, i) => {
                     const meta = metaOf.get(cell.column.id)!;
                     return (
-                      <td key={cell.id} className={`border-b border-rule px-2 py-1 align-top group-hover:bg-accent-soft ${i === 0 ? "sticky left-0 z-10 bg-white" : ""}`}>
+                      <td key={cell.id} className={`border-b border-rule px-2 py-1 align-top group-hover:bg-accent-soft ${meta.pin === "end" ? "sticky right-0 z-10 bg-white shadow-[inset_2px_0_0_var(--color-rule)]" : i === 0 ? "sticky left-0 z-10 bg-white" : ""}`}>
                         <div className={`${meta.width}${meta.numeric ? " num" : ""}`}>{flexRender(cell.column.columnDef.cell, cell.getContext())}</div>
                       </td>
                     );

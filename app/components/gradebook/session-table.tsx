@@ -79,7 +79,7 @@ function sessionColumns(sessionId: number, kUnit: string): Array<GradeColumn<Row
       ) : r.status === null ? <Missing reason="no upload" /> : "no",
     },
     {
-      id: "mark", label: "Mark", unit: "(%)", width: "w-24", numeric: true,
+      id: "mark", label: "Mark", unit: "(%)", width: "w-24", numeric: true, pin: "end",
       value: (r) => r.mark,
       text: (r) => (r.mark === null ? noMarkReason(r) : percentText(r.mark)),
       cell: (r) => (r.mark === null ? <span className="text-sm text-ink-soft">{noMarkReason(r)}</span> : <span className="font-bold">{percentText(r.mark)}</span>),
