@@ -6,6 +6,9 @@ export default [
 
   // Signing in and out, invitations and password resets (no session needed).
   route("sign-in", "routes/auth/sign-in.tsx"),
+  // Single sign-on through the institution's OpenID Connect provider (off unless configured).
+  route("sign-in/institution", "routes/auth/sso-start.tsx"),
+  route("sign-in/institution/return", "routes/auth/sso-return.tsx"),
   route("sign-out", "routes/auth/sign-out.tsx"),
   route("invitation/:token", "routes/auth/invitation.tsx"),
   ...prefix("password", [

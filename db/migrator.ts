@@ -20,6 +20,7 @@ import * as m0021 from "./migrations/0021-gradebook";
 import * as m0022 from "./migrations/0022-class-fit-exclusions";
 import * as m0025 from "./migrations/0025-gradebook-versions";
 import * as m0035 from "./migrations/0035-rate-limits";
+import * as m0040 from "./migrations/0040-sso-identities";
 
 const migrations: Migration[] = [
   { name: "0001-foundation", ...m0001 },
@@ -34,6 +35,7 @@ const migrations: Migration[] = [
   { name: "0022-class-fit-exclusions", ...m0022 },
   { name: "0025-gradebook-versions", ...m0025 },
   { name: "0035-rate-limits", ...m0035 },
+  { name: "0040-sso-identities", ...m0040 },
 ];
 
 export interface Migration {

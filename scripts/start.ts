@@ -35,6 +35,29 @@ if (!process.env.SMTP_URL) {
   env.MAIL_SINK_URL = `http://127.0.0.1:${httpPort}`;
   console.log(`[mail] local mail sink on 127.0.0.1:${smtpPort}; admins read it at /admin/mail`);
 }
+// Single sign-on: without a real provider (OIDC_ISSUER), the demo runs the fake institution, a
+// real OpenID provider on loopback with invented people (scripts/lib/fake-institution.ts).
+let institution: Awaited<ReturnType<typeof import("./lib/fake-institution").startFakeInstitution>> | null = null;
+if (!process.env.OIDC_ISSUER) {
+  const { startFakeInstitution } = await import("./lib/fake-institution");
+  const oidcPort = Number(process.env.FAKE_INSTITUTION_PORT ?? 3090);
+  const appUrl = (process.env.APP_URL ?? `http://localhost:${port}`).replace(/\/$/, "");
+  const client = { client_id: "ratebook-demo", client_secret: crypto.randomBytes(24).toString("hex"), redirect_uris: [`${appUrl}/sign-in/institution/return`] };
+  try {
+    institution = await startFakeInstitution({ port: oidcPort, clients: [client] });
+  } catch (error) {
+    if ((error as NodeJS.ErrnoException).code !== "EADDRINUSE") throw error;
+    console.error(`[sso] port ${oidcPort} is taken: is another \`npm start\` running? Stop it, or choose another port with FAKE_INSTITUTION_PORT.`);
+    process.exit(1);
+  }
+  env.OIDC_ISSUER = institution.issuer;
+  env.OIDC_CLIENT_ID = client.client_id;
+  env.OIDC_CLIENT_SECRET = client.client_secret;
+  env.OIDC_ID_CLAIM ??= "student_number";
+  env.OIDC_LABEL ??= "Fake Institution (local demo, invented people)";
+  console.log(`[sso] fake institution (OpenID provider) on ${institution.issuer}`);
+}
+
 // The demo runs the job-queue worker (e-mail, marking) in this process; production runs
 // `npm run worker` on machines of its own.
 const { keepWorkerRunning } = await import("../app/.server/jobs/worker.server");
@@ -78,11 +101,16 @@ function printSignIns() {
   printed = true;
   console.log(`\nRatebook is running at ${env.APP_URL}\n\nDemo sign-ins (invented demo data):`);
   for (const s of signIns) console.log(`  ${s.role.padEnd(13)} ${s.email.padEnd(38)} ${s.password}`);
+  if (institution) {
+    console.log(`\n"Sign in with your institution" (the fake institution; invented people):`);
+    for (const p of institution.people) console.log(`  ${p.username.padEnd(13)} ${p.password.padEnd(18)} ${p.email}${p.email_verified ? "" : " (not verified)"}`);
+  }
   console.log("\nPress Ctrl+C to stop. PostgreSQL keeps running; `npm run db:stop` stops it.\n");
 }
 for (const sig of ["SIGINT", "SIGTERM"] as const) process.on(sig, () => server.kill(sig));
 server.on("exit", async (code) => {
   await worker.stop().catch(() => undefined);
+  await institution?.close();
   await db.close();
   process.exit(code ?? 0);
 });

@@ -6,6 +6,7 @@ import { User } from "./db/models.server";
 import { verifyPassword } from "./passwords.server";
 import { beginSignIn, knownAccounts, signInSucceeded, waitWords } from "./throttle.server";
 import { clientAddress } from "./client-address.server";
+import { courseRequiringSso } from "./sso/accounts.server";
 
 export type SignedInUser = Pick<User, "id" | "email" | "role" | "displayName">;
 
@@ -24,6 +25,10 @@ export class SignInThrottled extends SignInError {
   constructor(readonly retryAfterS: number) {
     super(`Too many sign-in attempts. Try again in ${waitWords(retryAfterS)}, or reset your password.`);
   }
+}
+
+export function ssoRequiredMessage(courseCode: string) {
+  return `Students of ${courseCode} sign in through their institution: use "Sign in with your institution" instead of a password.`;
 }
 
 export const GENERIC_FAILURE = "That e-mail and password do not match an account.";
@@ -52,6 +57,9 @@ authenticator.use(
     if (ok && user) await signInSucceeded(email, client, gate.counted);
     // Unknown e-mail and wrong password get the same message, so accounts cannot be probed.
     if (!ok || !user) throw new SignInError(GENERIC_FAILURE);
+    // Said only after the right password, so it tells nothing to someone guessing.
+    const ssoCourse = await courseRequiringSso(user.id);
+    if (ssoCourse) throw new SignInError(ssoRequiredMessage(ssoCourse));
     return { id: user.id, email: user.email, role: user.role, displayName: user.displayName };
   }),
   "form",

@@ -23,7 +23,7 @@ export function sessionSecretsFrom(value: string | undefined): string[] {
 export function productionConfigProblems(env: NodeJS.ProcessEnv = process.env, part: "server" | "worker" = "server"): string[] {
   if (env.NODE_ENV !== "production") return [];
   const problems: string[] = [];
-  if (part === "server") problems.push(...secretProblems(env));
+  if (part === "server") problems.push(...secretProblems(env), ...ssoProblems(env));
   if (!env.APP_URL) problems.push("APP_URL is not set: set it to the address people use, e.g. https://ratebook.example.org (page forms are accepted only from it; mailed links use it).");
   else {
     try {
@@ -33,6 +33,45 @@ export function productionConfigProblems(env: NodeJS.ProcessEnv = process.env, p
     }
   }
   return problems;
+}
+
+/**
+ * Single sign-on through the institution's OpenID Connect provider: on when issuer, client id
+ * and secret are all set. OIDC_ID_CLAIM names a claim (e.g. "student_number") matched against the
+ * roster's student number when the e-mail does not match an account.
+ */
+export function ssoConfigFrom(env: NodeJS.ProcessEnv = process.env) {
+  const issuer = env.OIDC_ISSUER?.trim();
+  const clientId = env.OIDC_CLIENT_ID?.trim();
+  const clientSecret = env.OIDC_CLIENT_SECRET;
+  if (!issuer || !clientId || !clientSecret) return null;
+  return {
+    issuer,
+    clientId,
+    clientSecret,
+    idClaim: env.OIDC_ID_CLAIM?.trim() || null,
+    /** the institution's name on the button, e.g. "Northfield University" */
+    label: env.OIDC_LABEL?.trim() || null,
+  };
+}
+export type SsoConfig = NonNullable<ReturnType<typeof ssoConfigFrom>>;
+
+function ssoProblems(env: NodeJS.ProcessEnv): string[] {
+  const set = ["OIDC_ISSUER", "OIDC_CLIENT_ID", "OIDC_CLIENT_SECRET"].filter((n) => env[n]);
+  if (set.length === 0) return [];
+  if (set.length < 3) return [`Single sign-on needs OIDC_ISSUER, OIDC_CLIENT_ID and OIDC_CLIENT_SECRET together; only ${set.join(" and ")} ${set.length === 1 ? "is" : "are"} set.`];
+  try {
+    const url = new URL(env.OIDC_ISSUER!);
+    if (url.protocol !== "https:" && !isLoopback(url.hostname)) return [`OIDC_ISSUER (${env.OIDC_ISSUER}) must be an https:// address.`];
+  } catch {
+    return [`OIDC_ISSUER (${env.OIDC_ISSUER}) is not a URL: write it as https://host/path, as the provider's discovery document names it.`];
+  }
+  return [];
+}
+
+/** Plain http is accepted only for a provider on this machine (the local fake). */
+export function isLoopback(hostname: string) {
+  return hostname === "127.0.0.1" || hostname === "localhost" || hostname === "[::1]";
 }
 
 function secretProblems(env: NodeJS.ProcessEnv): string[] {
@@ -58,4 +97,5 @@ export const config = {
   secureCookies: process.env.SESSION_COOKIE_SECURE ? process.env.SESSION_COOKIE_SECURE === "1" : process.env.NODE_ENV === "production",
   /** Behind a load balancer, trust X-Forwarded-For for the client address (sign-in throttling). */
   trustProxy: process.env.TRUST_PROXY === "1",
+  sso: ssoConfigFrom(process.env),
 };

@@ -7,7 +7,7 @@ import { createCookie, redirect } from "react-router";
 import { config, productionConfigProblems } from "./config.server";
 import { User, sequelize } from "./db/models.server";
 import { readSignedCookie } from "./signed-cookie.server";
-import { UserSession } from "./db/user-session.server";
+import { UserSession, type SessionVia } from "./db/user-session.server";
 
 // A production server refuses to run with a missing or short secret (scripts/serve.ts says so
 // before it listens; this catches any other way of loading the app).
@@ -30,7 +30,8 @@ export type SessionEndReason =
   | "password-changed"
   | "password-reset"
   | "role-changed"
-  | "account-removed";
+  | "account-removed"
+  | "sso-required";
 
 export const sessionCookie = createCookie("__ratebook_session", {
   httpOnly: true,
@@ -57,7 +58,7 @@ async function tokenFrom(request: Request): Promise<string | null> {
 const SESSION_WITH_USER = `
   select s.id, s.user_id as "userId", s.token_hash as "tokenHash", s.user_agent as "userAgent",
          s.created_at as "createdAt", s.last_seen_at as "lastSeenAt", s.expires_at as "expiresAt",
-         s.ended_at as "endedAt", s.ended_reason as "endedReason",
+         s.ended_at as "endedAt", s.ended_reason as "endedReason", s.via,
          u.email, u.password_hash as "passwordHash", u.role, u.display_name as "displayName",
          u.created_at as "userCreatedAt", u.updated_at as "userUpdatedAt"
     from user_sessions s join users u on u.id = s.user_id
@@ -79,7 +80,7 @@ export async function sessionOf(request: Request, now = new Date()): Promise<{ s
 }
 
 /** Signs the person in on this browser: a new session row, and its token in the cookie. */
-export async function startSession(userId: number, redirectTo: string, request?: Request) {
+export async function startSession(userId: number, redirectTo: string, request?: Request, via: SessionVia = "password") {
   const token = crypto.randomBytes(32).toString("base64url");
   const now = new Date();
   await UserSession.destroy({ where: { userId, expiresAt: { [Op.lt]: now } } });
@@ -89,6 +90,7 @@ export async function startSession(userId: number, redirectTo: string, request?:
     userAgent: (request?.headers.get("user-agent") ?? "").slice(0, 200),
     lastSeenAt: now,
     expiresAt: new Date(now.getTime() + SESSION_LIFETIME_MS),
+    via,
   });
   return redirect(redirectTo, { headers: { "Set-Cookie": await sessionCookie.serialize(token) } });
 }

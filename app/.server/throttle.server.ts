@@ -22,6 +22,7 @@ export const LIMITS = {
   signInPair: { points: 5, duration: 15 * 60, what: "failed sign-ins for one account from one address" },
   signInClient: { points: 30, duration: 15 * 60, what: "failed sign-ins from one address" },
   signInAccount: { points: 20, duration: 60 * 60, what: "failed sign-ins for one account from browsers new to it" },
+  ssoStart: { points: 30, duration: 15 * 60, what: "institution sign-ins started from one address" },
   resetClient: { points: 5, duration: 60 * 60, what: "password reset requests from one address" },
   resetAddress: { points: 3, duration: 60 * 60, what: "password reset requests for one e-mail" },
   preview: { points: 60, duration: 60, what: "upload previews per person" },

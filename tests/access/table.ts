@@ -44,6 +44,10 @@ export const ACCESS: Record<string, RouteAccess> = {
     post: [400, 302, 302, 302, 302, 302],
     screens: ["signedOut"],
   },
+  // Single sign-on: the start sends everyone to the fake institution; the return address without a
+  // sign-in in progress in this browser is a page saying so.
+  "routes/auth/sso-start.tsx": { url: "/sign-in/institution", get: [302, 302, 302, 302, 302, 302], post: [405, 405, 405, 405, 405, 405] },
+  "routes/auth/sso-return.tsx": { url: "/sign-in/institution/return?code=x&state=y", get: [400, 400, 400, 400, 400, 400], post: [405, 405, 405, 405, 405, 405], screens: ["signedOut"] },
   "routes/auth/sign-out.tsx": { url: "/sign-out", get: [302, 302, 302, 302, 302, 302], post: [302, 302, 302, 302, 302, 302], endsSession: true },
   "routes/auth/invitation.tsx": { url: "/invitation/{badToken}", get: [200, 200, 200, 200, 200, 200], post: [400, 400, 400, 400, 400, 400], screens: ["signedOut"] },
   "routes/auth/password-forgot.tsx": { url: "/password/forgot", get: [200, 200, 200, 200, 200, 200], post: [400, 400, 400, 400, 400, 400], screens: ["signedOut"] },

@@ -15,6 +15,7 @@ import "~/.server/db/lab-sessions.server";
 import "~/.server/db/reaction-systems.server";
 import "~/.server/db/submissions.server";
 import "~/.server/db/user-session.server";
+import "~/.server/db/user-identity.server";
 
 interface Column {
   table_name: string;

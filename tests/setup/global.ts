@@ -5,9 +5,11 @@ import pg from "pg";
 import { ensurePostgres } from "../../scripts/lib/postgres";
 import { startMailSink, type MailSink } from "../../scripts/lib/mail-sink";
 import { createMigrator } from "../../db/migrator";
-import { testEnv, TEST_MAIL_HTTP_PORT, TEST_SMTP_PORT } from "./test-env";
+import { startFakeInstitution, type FakeInstitution } from "../../scripts/lib/fake-institution";
+import { testEnv, TEST_MAIL_HTTP_PORT, TEST_OIDC_CLIENT, TEST_OIDC_PORT, TEST_SMTP_PORT } from "./test-env";
 
 let sink: MailSink | null = null;
+let institution: FakeInstitution | null = null;
 
 export async function setup() {
   Object.assign(process.env, testEnv);
@@ -29,8 +31,10 @@ export async function setup() {
   const { closeSequelize } = await import("../../app/.server/db/sequelize.server");
   await closeSequelize();
   sink = await startMailSink({ smtpPort: TEST_SMTP_PORT, httpPort: TEST_MAIL_HTTP_PORT });
+  institution = await startFakeInstitution({ port: TEST_OIDC_PORT, clients: [TEST_OIDC_CLIENT] });
 }
 
 export async function teardown() {
   await sink?.close();
+  await institution?.close();
 }

@@ -40,6 +40,8 @@ export class Course extends Model<InferAttributes<Course>, InferCreationAttribut
   declare archivedAt: CreationOptional<Date | null>;
   /** gradebook: a practical with no mark counts 0 in the total (else it is left out of it) */
   declare missingCountsAsZero: CreationOptional<boolean>;
+  /** students must sign in through the institution's single sign-on (staff may still use a password) */
+  declare ssoRequired: CreationOptional<boolean>;
   declare createdAt: CreationOptional<Date>;
   declare updatedAt: CreationOptional<Date>;
 }
@@ -116,6 +118,7 @@ Course.init(
     term: { type: DataTypes.STRING(60), allowNull: false, defaultValue: "" },
     archivedAt: { type: DataTypes.DATE, allowNull: true },
     missingCountsAsZero: { type: DataTypes.BOOLEAN, allowNull: false, defaultValue: false },
+    ssoRequired: { type: DataTypes.BOOLEAN, allowNull: false, defaultValue: false },
     createdAt: DataTypes.DATE,
     updatedAt: DataTypes.DATE,
   },

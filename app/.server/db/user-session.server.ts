@@ -2,6 +2,8 @@
 import { DataTypes, Model, type CreationOptional, type ForeignKey, type InferAttributes, type InferCreationAttributes } from "sequelize";
 import { sequelize, User } from "./models.server";
 
+export type SessionVia = "password" | "sso";
+
 export class UserSession extends Model<InferAttributes<UserSession>, InferCreationAttributes<UserSession>> {
   declare id: CreationOptional<number>;
   declare userId: ForeignKey<User["id"]>;
@@ -12,6 +14,8 @@ export class UserSession extends Model<InferAttributes<UserSession>, InferCreati
   declare expiresAt: Date;
   declare endedAt: CreationOptional<Date | null>;
   declare endedReason: CreationOptional<string | null>;
+  /** how the session was started: "password" or "sso" (the institution's sign-in) */
+  declare via: CreationOptional<SessionVia>;
   declare user?: User;
 }
 
@@ -25,6 +29,7 @@ UserSession.init(
     expiresAt: { type: DataTypes.DATE, allowNull: false },
     endedAt: { type: DataTypes.DATE, allowNull: true },
     endedReason: { type: DataTypes.STRING(40), allowNull: true },
+    via: { type: DataTypes.STRING(20), allowNull: false, defaultValue: "password" },
   },
   { sequelize, underscored: true, tableName: "user_sessions", updatedAt: false },
 );

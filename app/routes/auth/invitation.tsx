@@ -1,4 +1,4 @@
-import { data, Form, Link, useNavigation } from "react-router";
+import { data, Form, Link, redirect, useNavigation } from "react-router";
 import type { Route } from "./+types/invitation";
 import { checkToken } from "~/.server/tokens.server";
 import { acceptInvitation } from "~/.server/people.server";
@@ -7,6 +7,7 @@ import { Button, Field, FormMessage } from "~/components/form";
 import { NarrowPage } from "~/components/page";
 import { MIN_PASSWORD_LENGTH } from "~/.server/passwords.server";
 import { readForm } from "~/.server/body.server";
+import { courseRequiringSso } from "~/.server/sso/accounts.server";
 
 export const meta: Route.MetaFunction = () => [{ title: "Accept invitation · Ratebook" }];
 
@@ -24,6 +25,8 @@ export async function action({ request, params }: Route.ActionArgs) {
     displayName: form.get("displayName"),
   });
   if (!result.ok) return data({ errors: result.errors, displayName: String(form.get("displayName") ?? "") }, { status: 400 });
+  // A student of a course that asks for the institution's sign-in is sent there instead.
+  if (await courseRequiringSso(result.value.id)) throw redirect("/sign-in?sso=required");
   return startSession(result.value.id, "/dashboard", request);
 }
 

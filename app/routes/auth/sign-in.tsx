@@ -7,6 +7,7 @@ import { startSession } from "~/.server/session.server";
 import { Button, Field, FormMessage } from "~/components/form";
 import { NarrowPage } from "~/components/page";
 import { readForm, withFormBody } from "~/.server/body.server";
+import { ssoConfig } from "~/.server/sso/oidc.server";
 
 export const meta: Route.MetaFunction = () => [{ title: "Sign in · Ratebook" }];
 
@@ -14,7 +15,13 @@ export async function loader({ request }: Route.LoaderArgs) {
   const url = new URL(request.url);
   const returnTo = safeReturnTo(url.searchParams.get("returnTo"));
   if (await currentUser(request)) throw redirect(returnTo);
-  return { returnTo, reset: url.searchParams.get("reset") === "1" };
+  const sso = ssoConfig();
+  return {
+    returnTo,
+    reset: url.searchParams.get("reset") === "1",
+    ssoRequired: url.searchParams.get("sso") === "required",
+    sso: sso ? { label: sso.label } : null,
+  };
 }
 
 export async function action({ request }: Route.ActionArgs) {
@@ -45,7 +52,21 @@ export default function SignIn({ loaderData, actionData }: Route.ComponentProps)
   return (
     <NarrowPage title="Sign in">
       {loaderData.reset ? <FormMessage tone="info">Your password is changed. Sign in with the new one.</FormMessage> : null}
+      {loaderData.ssoRequired ? <FormMessage tone="info">Your course asks students to sign in through their institution: use "Sign in with your institution".</FormMessage> : null}
       {formError ? <FormMessage tone="error">{formError}</FormMessage> : null}
+      {loaderData.sso ? (
+        <section aria-labelledby="sso-heading" className="mb-8 rounded border border-rule p-4">
+          <h2 id="sso-heading" className="mb-2 font-bold">With your institution account</h2>
+          <a
+            className="inline-block rounded border-2 border-accent px-4 py-2 font-bold text-accent hover:bg-accent-soft"
+            href={`/sign-in/institution?returnTo=${encodeURIComponent(loaderData.returnTo)}`}
+          >
+            Sign in with your institution
+          </a>
+          {loaderData.sso.label ? <p className="mt-2 text-sm text-ink-soft">{loaderData.sso.label}</p> : null}
+        </section>
+      ) : null}
+      {loaderData.sso ? <h2 className="mb-2 font-bold">With a Ratebook password</h2> : null}
       <Form method="post" noValidate>
         <input type="hidden" name="returnTo" value={loaderData.returnTo} />
         <Field

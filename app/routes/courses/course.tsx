@@ -12,6 +12,8 @@ import { RoleSelect } from "~/components/role-select";
 import { courseSessions } from "~/.server/planning/sessions.server";
 import { CoursePlanning } from "~/components/planning/course-planning";
 import { trailFor } from "~/lib/place";
+import { setCourseSsoRequired } from "~/.server/sso/accounts.server";
+import { ssoConfig } from "~/.server/sso/oidc.server";
 
 export const meta: Route.MetaFunction = ({ data }) => [{ title: `${data?.course.code ?? "Course"} · Ratebook` }];
 
@@ -41,7 +43,8 @@ export async function loader({ request, params }: Route.LoaderArgs) {
     }));
   const sessions = await courseSessions(course.id);
   return {
-    course: { id: course.id, code: course.code, title: course.title, term: course.term, archived: course.archivedAt !== null },
+    course: { id: course.id, code: course.code, title: course.title, term: course.term, archived: course.archivedAt !== null, ssoRequired: course.ssoRequired },
+    ssoAvailable: ssoConfig() !== null,
     myRole,
     canManage: actingRole === "instructor",
     // copying makes a new course: the account must be one that may create courses
@@ -69,6 +72,18 @@ export async function action({ request, params }: Route.ActionArgs) {
     return reply({ errors: {}, values: {}, notice: intent === "archive" ? "The course is archived: it is read-only until you take it out of the archive." : "The course is out of the archive." });
   }
   if (course.archivedAt) return refuse("This course is archived; take it out of the archive before changing it.");
+  if (intent === "sso-required" || intent === "sso-optional") {
+    const required = intent === "sso-required";
+    if (required && !ssoConfig()) return refuse("Signing in with an institution is not set up on this Ratebook (OIDC_ISSUER is not set), so it cannot be required.");
+    const { endedSessions } = await setCourseSsoRequired(user.id, course.id, required);
+    return reply({
+      errors: {},
+      values: {},
+      notice: required
+        ? `Students of this course now sign in through their institution only${endedSessions ? `; ${endedSessions} password session${endedSessions === 1 ? " was" : "s were"} ended` : ""}. Staff keep their passwords.`
+        : "Students of this course may sign in with a password again.",
+    });
+  }
   if (intent === "invite") {
     const result = await inviteToCourse(user, course.id, { email: form.get("email"), displayName: form.get("displayName"), role: form.get("role") });
     if (!result.ok) return reply({ errors: result.errors, values: Object.fromEntries(form) as Record<string, string>, notice: null }, 400);
@@ -178,6 +193,22 @@ export default function CoursePage({ loaderData, actionData }: Route.ComponentPr
                 <h2 id="copy-h" className="mb-2 text-xl font-bold">Next term</h2>
                 <p className="mb-3 text-sm text-ink-soft">A new course with this one's staff, reaction systems and practicals, without its students and marks.</p>
                 <Link className="inline-block rounded border border-ink-soft px-3 py-1 hover:bg-accent-soft" to={`/courses/${course.id}/copy`}>Copy to a new term</Link>
+              </section>
+            ) : null}
+            {loaderData.ssoAvailable || course.ssoRequired ? (
+              <section aria-labelledby="sso-h" className="rounded border border-rule bg-white p-4">
+                <h2 id="sso-h" className="mb-2 text-xl font-bold">Institution sign-in</h2>
+                <p className="mb-3 text-sm text-ink-soft">
+                  {course.ssoRequired
+                    ? "Students of this course sign in through their institution only; a password does not let them in. Staff may still use a password."
+                    : "Students may sign in with a Ratebook password or through their institution. Requiring the institution ends students' password sessions at once."}
+                </p>
+                <Form method="post">
+                  <input type="hidden" name="intent" value={course.ssoRequired ? "sso-optional" : "sso-required"} />
+                  <button type="submit" className="rounded border border-ink-soft px-3 py-1 hover:bg-accent-soft">
+                    {course.ssoRequired ? "Let students use a password again" : "Require institution sign-in for students"}
+                  </button>
+                </Form>
               </section>
             ) : null}
             <section aria-labelledby="archive-h" className="rounded border border-rule bg-white p-4">
