@@ -21,6 +21,7 @@ import * as m0022 from "./migrations/0022-class-fit-exclusions";
 import * as m0025 from "./migrations/0025-gradebook-versions";
 import * as m0035 from "./migrations/0035-rate-limits";
 import * as m0040 from "./migrations/0040-sso-identities";
+import * as m0046 from "./migrations/0046-course-time-zone";
 
 const migrations: Migration[] = [
   { name: "0001-foundation", ...m0001 },
@@ -36,6 +37,7 @@ const migrations: Migration[] = [
   { name: "0025-gradebook-versions", ...m0025 },
   { name: "0035-rate-limits", ...m0035 },
   { name: "0040-sso-identities", ...m0040 },
+  { name: "0046-course-time-zone", ...m0046 },
 ];
 
 export interface Migration {

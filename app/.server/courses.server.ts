@@ -3,6 +3,7 @@ import { Course, CourseMembership, User, sequelize, type CourseRole } from "./db
 import { recordAudit } from "./audit.server";
 import { Group, GroupMember } from "./db/groups.server";
 import type { FieldErrors, Outcome } from "./people.server";
+import { isTimeZone } from "~/lib/time-zone";
 
 export interface CourseSummary {
   id: number;
@@ -97,6 +98,20 @@ export async function createCourse(actor: User, input: { code: unknown; title: u
     return c;
   });
   return { ok: true, value: course };
+}
+
+/** Instructor (or admin): the course's clock, in which deadlines are entered and shown; audited. Stored deadlines keep their moment. */
+export async function setCourseTimeZone(actor: User, courseId: number, zone: unknown): Promise<Outcome> {
+  if (!isTimeZone(zone)) return { ok: false, errors: { timeZone: "Choose a time zone from the list (e.g. Europe/Berlin)." } };
+  return sequelize.transaction(async (transaction) => {
+    const course = await Course.findByPk(courseId, { transaction, lock: true });
+    if (!course) return { ok: false as const, errors: { form: "That course no longer exists." } };
+    if (course.timeZone === zone) return { ok: true as const, value: undefined };
+    const before = { timeZone: course.timeZone };
+    await course.update({ timeZone: zone }, { transaction });
+    await recordAudit({ actorId: actor.id, action: "course.time-zone-changed", entityType: "course", entityId: course.id, before, after: { timeZone: zone } }, transaction);
+    return { ok: true as const, value: undefined };
+  });
 }
 
 /** Instructor (or admin): archives a course, or takes it out of the archive; audited. */

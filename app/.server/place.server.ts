@@ -12,11 +12,11 @@ export interface Place {
 export async function practicalPlace(sessionId: number): Promise<Place> {
   const session = await LabSession.findByPk(sessionId, { attributes: ["id", "title", "courseId"] });
   if (!session) return { course: null, practical: null };
-  const course = await Course.findByPk(session.courseId, { attributes: ["id", "code"] });
-  return { course: course ? { id: course.id, code: course.code } : null, practical: { id: session.id, title: session.title } };
+  const course = await Course.findByPk(session.courseId, { attributes: ["id", "code", "timeZone"] });
+  return { course: course ? { id: course.id, code: course.code, timeZone: course.timeZone } : null, practical: { id: session.id, title: session.title } };
 }
 
 export async function coursePlace(courseId: number): Promise<Place> {
-  const course = await Course.findByPk(courseId, { attributes: ["id", "code"] });
-  return { course: course ? { id: course.id, code: course.code } : null, practical: null };
+  const course = await Course.findByPk(courseId, { attributes: ["id", "code", "timeZone"] });
+  return { course: course ? { id: course.id, code: course.code, timeZone: course.timeZone } : null, practical: null };
 }

@@ -8,6 +8,8 @@ export interface Crumb {
 export interface CoursePlace {
   id: number;
   code: string;
+  /** the course's clock, for the page's dates (not part of the trail) */
+  timeZone?: string;
 }
 
 export interface PracticalPlace {

@@ -79,7 +79,7 @@ function NextSteps({ steps }: { steps: NextStep[] }) {
               <Link className="underline" to={`/sessions/${s.sessionId}`}>{s.practical}</Link> <span className="font-normal text-ink-soft">({s.courseCode}, {formatDay(s.date)})</span>
             </h3>
             <p>{upperFirst(groupLabel(s.group))} · bench {s.bench} · feed CA0 {fixed(s.feed.CA0, 4)} mol/L, CB0 {fixed(s.feed.CB0, 4)} mol/L at {fixed(s.feed.temperatureC, 1)} °C</p>
-            <p>Deadline: {s.deadline ? formatDateTime(s.deadline) : "none set"}</p>
+            <p>Deadline: {s.deadline ? formatDateTime(s.deadline, s.timeZone) : "none set"}</p>
             <p>
               Your latest upload{s.upload.version ? ` (version ${s.upload.version}, ${formatDateTime(s.upload.submittedAt)})` : ""}: {s.upload.version ? UPLOAD_STATE[s.upload.state] : UPLOAD_STATE.none}
             </p>

@@ -17,6 +17,8 @@ export interface NextStep {
   date: string;
   status: string;
   deadline: string | null;
+  /** the course's clock, for showing the deadline */
+  timeZone: string;
   benchId: number;
   bench: string;
   groupId: number;
@@ -34,7 +36,7 @@ export async function nextSteps(user: Pick<User, "id">): Promise<NextStep[]> {
     include: [{ model: LabSession, as: "session" }, { model: Group, as: "group" }],
   });
   if (!benches.length) return [];
-  const courses = new Map((await Course.findAll({ where: { id: [...new Set(benches.map((b) => b.session!.courseId))] }, attributes: ["id", "code"] })).map((c) => [c.id, c.code]));
+  const courses = new Map((await Course.findAll({ where: { id: [...new Set(benches.map((b) => b.session!.courseId))] }, attributes: ["id", "code", "timeZone"] })).map((c) => [c.id, c]));
   // every version of these groups' uploads in one query, newest first: the first seen per bench is its latest
   const versions = await Submission.findAll({
     where: { [Op.or]: benches.map((b) => ({ groupId: b.groupId!, sessionId: b.sessionId })) },
@@ -58,7 +60,8 @@ export async function nextSteps(user: Pick<User, "id">): Promise<NextStep[]> {
     steps.push({
       sessionId: s.id,
       practical: s.title,
-      courseCode: courses.get(s.courseId) ?? "",
+      courseCode: courses.get(s.courseId)?.code ?? "",
+      timeZone: courses.get(s.courseId)?.timeZone ?? "UTC",
       date: s.date,
       status: s.status,
       deadline: s.deadline ? s.deadline.toISOString() : null,

@@ -42,6 +42,8 @@ export class Course extends Model<InferAttributes<Course>, InferCreationAttribut
   declare missingCountsAsZero: CreationOptional<boolean>;
   /** students must sign in through the institution's single sign-on (staff may still use a password) */
   declare ssoRequired: CreationOptional<boolean>;
+  /** IANA zone of the lab's wall clock (deadlines are entered and shown in it) */
+  declare timeZone: CreationOptional<string>;
   declare createdAt: CreationOptional<Date>;
   declare updatedAt: CreationOptional<Date>;
 }
@@ -119,6 +121,7 @@ Course.init(
     archivedAt: { type: DataTypes.DATE, allowNull: true },
     missingCountsAsZero: { type: DataTypes.BOOLEAN, allowNull: false, defaultValue: false },
     ssoRequired: { type: DataTypes.BOOLEAN, allowNull: false, defaultValue: false },
+    timeZone: { type: DataTypes.STRING(64), allowNull: false, defaultValue: "UTC" },
     createdAt: DataTypes.DATE,
     updatedAt: DataTypes.DATE,
   },

@@ -41,14 +41,15 @@ const TEMPLATES = {
   },
   "bench-notice": {
     // groupId is optional: jobs queued before the upload link was added still render
-    data: z.object({ name, group: name, practical: name, date: z.string().max(40), bench: name, sessionId: id, benchId: id, groupId: id.optional(), deadlineUtc: z.string().max(40).nullable() }),
-    render: (d: { name: string; group: string; practical: string; date: string; bench: string; sessionId: number; benchId: number; groupId?: number; deadlineUtc: string | null }) => ({
+    data: z.object({ name, group: name, practical: name, date: z.string().max(40), bench: name, sessionId: id, benchId: id, groupId: id.optional(), deadlineUtc: z.string().max(40).nullable(), deadlineShown: z.string().max(60).optional() }),
+    // deadlineShown: the deadline on the course's clock with its zone ("Thu, 10 Dec 2026, 17:00 CET"); older jobs carry only deadlineUtc
+    render: (d: { name: string; group: string; practical: string; date: string; bench: string; sessionId: number; benchId: number; groupId?: number; deadlineUtc: string | null; deadlineShown?: string }) => ({
       subject: `Your bench for ${inline(d.practical)} on ${inline(d.date)}: bench ${inline(d.bench)}`,
       text:
         `Hello ${inline(d.name)},\n\n${upperFirst(groupLabel(inline(d.group)))} works at bench ${inline(d.bench)} in ${inline(d.practical)} on ${inline(d.date)}.\n` +
         `Your bench sheet (feed, temperature, volumes to mix, sampling plan and hazard cautions):\n\n` +
         `${config.appUrl}/sessions/${d.sessionId}/benches/${d.benchId}/sheet\n\n` +
-        (d.deadlineUtc ? `Upload your readings by ${inline(d.deadlineUtc)} UTC.\n` : "") +
+        (d.deadlineShown ? `Upload your readings by ${inline(d.deadlineShown)}.\n` : d.deadlineUtc ? `Upload your readings by ${inline(d.deadlineUtc)} UTC.\n` : "") +
         (d.groupId ? `Upload your readings here:\n\n${config.appUrl}/groups/${d.groupId}/submissions\n` : ""),
     }),
   },

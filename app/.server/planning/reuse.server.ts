@@ -10,6 +10,7 @@ import { recordAudit } from "../audit.server";
 import { createCourse } from "../courses.server";
 import type { FieldErrors, Outcome } from "../people.server";
 import { isRealDay } from "~/lib/dates";
+import { fromWallTime, wallTime } from "~/lib/time-zone";
 
 const DAY_MS = 86_400_000;
 
@@ -56,7 +57,18 @@ async function reactionIn(courseId: number, source: ReactionSystem, transaction:
 }
 
 /** One practical copied into a course, its lab day and deadline moved by `days`; no groups on its benches. */
-async function copyOne(source: LabSession, courseId: number, reactionSystemId: number, days: number, title: string, transaction: Transaction): Promise<LabSession> {
+/**
+ * The deadline moved by whole days on the courses' wall clocks: 17:00 in Berlin stays 17:00 in
+ * Berlin across a clock change (a plain 24 h shift would make it 16:00 or 18:00).
+ */
+export function movedDeadline(deadline: Date, days: number, zones: { from: string; to: string }): Date {
+  const wall = wallTime(deadline, zones.from);
+  const moved = fromWallTime(`${moveDay(wall.slice(0, 10), days)}${wall.slice(10)}`, zones.to);
+  // a time the target clock skips: an hour later is the same instant as the hour it skips to
+  return moved.ok ? moved.at : new Date(deadline.getTime() + days * DAY_MS);
+}
+
+async function copyOne(source: LabSession, courseId: number, reactionSystemId: number, days: number, title: string, zones: { from: string; to: string }, transaction: Transaction): Promise<LabSession> {
   const copy = await LabSession.create(
     {
       courseId,
@@ -71,7 +83,7 @@ async function copyOne(source: LabSession, courseId: number, reactionSystemId: n
       samplingIntervalS: source.samplingIntervalS,
       targetConversion: source.targetConversion,
       rubric: { ...source.rubric },
-      deadline: source.deadline ? new Date(source.deadline.getTime() + days * DAY_MS) : null,
+      deadline: source.deadline ? movedDeadline(source.deadline, days, zones) : null,
       gradeWeight: source.gradeWeight,
       status: "planned",
     },
@@ -112,7 +124,8 @@ export async function copyPractical(actor: User, source: LabSession, input: Copy
   const copy = await sequelize.transaction(async (transaction) => {
     const reaction = await ReactionSystem.findByPk(source.reactionSystemId, { transaction });
     const target = await reactionIn(courseId, reaction!, transaction);
-    const s = await copyOne(source, courseId, target.id, days, title, transaction);
+    const zoneOf = async (id: number) => (await Course.findByPk(id, { attributes: ["id", "timeZone"], transaction }))?.timeZone ?? "UTC";
+    const s = await copyOne(source, courseId, target.id, days, title, { from: await zoneOf(source.courseId), to: await zoneOf(courseId) }, transaction);
     await recordAudit(
       { actorId: actor.id, action: "session.copied", entityType: "lab_session", entityId: s.id, before: { sessionId: source.id, courseId: source.courseId }, after: { courseId, date, daysMoved: days } },
       transaction,
@@ -149,7 +162,7 @@ export async function copyCourse(actor: User, source: Course, input: CopyCourseI
   const course = made.value;
   const days = practicals.length ? daysBetween(practicals[0].date, firstDate) : 0;
   await sequelize.transaction(async (transaction) => {
-    await course.update({ missingCountsAsZero: source.missingCountsAsZero }, { transaction });
+    await course.update({ missingCountsAsZero: source.missingCountsAsZero, timeZone: source.timeZone }, { transaction });
     const staff = await CourseMembership.findAll({ where: { courseId: source.id, role: { [Op.in]: ["instructor", "demonstrator"] }, userId: { [Op.ne]: actor.id } }, transaction });
     if (staff.length) await CourseMembership.bulkCreate(staff.map((m) => ({ courseId: course.id, userId: m.userId, role: m.role })), { transaction });
     const reactions = await ReactionSystem.findAll({ where: { courseId: source.id }, order: [["id", "ASC"]], transaction });
@@ -158,7 +171,8 @@ export async function copyCourse(actor: User, source: Course, input: CopyCourseI
       const { id: _id, courseId: _c, createdAt: _a, updatedAt: _u, ...fields } = r.get({ plain: true });
       map.set(r.id, (await ReactionSystem.create({ ...fields, courseId: course.id }, { transaction })).id);
     }
-    for (const p of practicals) await copyOne(p, course.id, map.get(p.reactionSystemId)!, days, p.title, transaction);
+    const zones = { from: source.timeZone, to: source.timeZone };
+    for (const p of practicals) await copyOne(p, course.id, map.get(p.reactionSystemId)!, days, p.title, zones, transaction);
     await recordAudit(
       {
         actorId: actor.id,

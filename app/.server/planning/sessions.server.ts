@@ -13,7 +13,8 @@ import { recordAudit } from "../audit.server";
 import { queueMail } from "../mail/outbox.server";
 import { benchProblems, predictBench, proposeBenches, sessionProblems, type BenchFeed, type Problem, type ReactionForDesign, type SessionForDesign } from "~/lib/planning/feed-design";
 import { naturalCompare } from "~/lib/natural-order";
-import { isRealDateTime, isRealDay } from "~/lib/dates";
+import { formatDateTime, isRealDateTime, isRealDay } from "~/lib/dates";
+import { fromWallTime } from "~/lib/time-zone";
 import { rubricFrom } from "~/lib/marking/rubric";
 import { marksOutOf } from "~/lib/marking/rubric-view";
 import { rubricExamples } from "~/lib/marking/rubric-example";
@@ -189,6 +190,8 @@ export async function createSession(actor: User, courseId: number, input: SaveIn
   if (!rs) return { ok: false, errors: { reactionSystemId: ["Choose a reaction system of this course."] } };
   const problems = blockingProblems(reactionForDesign(rs), sessionForDesign(input), input.benches);
   if (problems.length) return { ok: false, errors: groupProblems(problems) };
+  const deadline = deadlineIn(input.deadline, await courseZone(courseId));
+  if (!deadline.ok) return { ok: false, errors: { deadline: [deadline.message] } };
   const session = await sequelize.transaction(async (transaction) => {
     const s = await LabSession.create(
       {
@@ -204,7 +207,7 @@ export async function createSession(actor: User, courseId: number, input: SaveIn
         samplingIntervalS: input.samplingIntervalS,
         targetConversion: input.targetConversionPct / 100,
         rubric: rubricOf(input),
-        deadline: utcDeadline(input.deadline),
+        deadline: deadline.at,
         status: "planned",
       },
       { transaction },
@@ -219,10 +222,20 @@ export async function createSession(actor: User, courseId: number, input: SaveIn
   return { ok: true, value: session };
 }
 
-/** The form's deadline is a UTC wall time (datetime-local has no zone): read it as UTC on any server. */
-function utcDeadline(text: string | undefined): Date | null {
-  if (!text) return null;
-  return new Date(/(Z|[+-]\d\d:?\d\d)$/i.test(text) ? text : `${text}Z`);
+/**
+ * The form's deadline is a wall time on the course's clock (datetime-local has no zone): read it
+ * in the course's time zone on any server. A time the clocks skip is refused beside the field.
+ */
+export function deadlineIn(text: string | undefined, timeZone: string): { ok: true; at: Date | null } | { ok: false; message: string } {
+  if (!text) return { ok: true, at: null };
+  if (/(Z|[+-]\d\d:?\d\d)$/i.test(text)) return { ok: true, at: new Date(text) };
+  const r = fromWallTime(text, timeZone);
+  if (r.ok) return { ok: true, at: r.at };
+  return { ok: false, message: r.reason === "gap" ? `There is no ${text.replace("T", " ")} in ${timeZone}: the clocks skip that hour. Choose a time outside it.` : "Use a date and time (YYYY-MM-DDTHH:MM)." };
+}
+
+async function courseZone(courseId: number): Promise<string> {
+  return (await Course.findByPk(courseId, { attributes: ["id", "timeZone"] }))?.timeZone ?? "UTC";
 }
 
 export function groupProblems(problems: Problem[]): Record<string, string[]> {
@@ -421,6 +434,7 @@ export async function notifyGroups(actor: User, session: LabSession) {
   const assigned = benches.filter((b) => b.groupId !== null);
   if (!assigned.length) return { ok: false as const, message: "Assign groups to benches first: no group has a bench yet." };
   const members = await GroupMember.findAll({ where: { groupId: assigned.map((b) => b.groupId!) }, include: [{ model: User, as: "user" }, { model: Group, as: "group" }] });
+  const zone = await courseZone(session.courseId);
   let sent = 0;
   await sequelize.transaction(async (transaction) => {
     for (const m of members) {
@@ -438,6 +452,7 @@ export async function notifyGroups(actor: User, session: LabSession) {
           benchId: bench.id,
           groupId: m.groupId,
           deadlineUtc: session.deadline ? session.deadline.toISOString().slice(0, 16).replace("T", " ") : null,
+          ...(session.deadline ? { deadlineShown: formatDateTime(session.deadline, zone) } : {}),
         },
         { transaction },
       );
@@ -462,7 +477,7 @@ export const detailsSchema = z
   })
   .superRefine(sessionRules);
 
-export async function updateSessionDetails(actor: User, session: LabSession, input: z.output<typeof detailsSchema>) {
+export async function updateSessionDetails(actor: User, session: LabSession, input: z.output<typeof detailsSchema>): Promise<{ ok: true } | { ok: false; errors: Record<string, string[]> }> {
   const pick = (s: { title: string; date: string; slotMinutes: number; setupMinutes: number; samplingIntervalS: number; deadline: Date | null }) => ({
     title: s.title,
     date: s.date,
@@ -472,11 +487,14 @@ export async function updateSessionDetails(actor: User, session: LabSession, inp
     deadline: s.deadline ? s.deadline.toISOString() : null,
   });
   const before = pick(session);
-  const next = { ...input, deadline: utcDeadline(input.deadline) };
+  const deadline = deadlineIn(input.deadline, await courseZone(session.courseId));
+  if (!deadline.ok) return { ok: false, errors: { deadline: [deadline.message] } };
+  const next = { ...input, deadline: deadline.at };
   await sequelize.transaction(async (transaction) => {
     await session.update(next, { transaction });
     await auditIfNotified(actor, session, "session.details-changed-after-notice", before, pick({ ...next }), transaction);
   });
+  return { ok: true };
 }
 
 export { DEFAULT_RUBRIC };

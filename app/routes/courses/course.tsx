@@ -1,7 +1,8 @@
 import { data, Form, Link, useNavigation } from "react-router";
 import type { Route } from "./+types/course";
 import { NO_COURSE, ownCourseRole, requireCourseRole, requireUser } from "~/.server/guards.server";
-import { courseMembers, removeMember, setCourseArchived } from "~/.server/courses.server";
+import { courseMembers, removeMember, setCourseArchived, setCourseTimeZone } from "~/.server/courses.server";
+import { timeZoneNames } from "~/lib/time-zone";
 import { changeMembershipRole, inviteToCourse, type FieldErrors } from "~/.server/people.server";
 import { Course, COURSE_ROLES } from "~/.server/db/models.server";
 import { readForm } from "~/.server/body.server";
@@ -43,8 +44,9 @@ export async function loader({ request, params }: Route.LoaderArgs) {
     }));
   const sessions = await courseSessions(course.id);
   return {
-    course: { id: course.id, code: course.code, title: course.title, term: course.term, archived: course.archivedAt !== null, ssoRequired: course.ssoRequired },
+    course: { id: course.id, code: course.code, title: course.title, term: course.term, archived: course.archivedAt !== null, ssoRequired: course.ssoRequired, timeZone: course.timeZone },
     ssoAvailable: ssoConfig() !== null,
+    timeZones: actingRole === "instructor" ? timeZoneNames() : [],
     myRole,
     canManage: actingRole === "instructor",
     // copying makes a new course: the account must be one that may create courses
@@ -83,6 +85,11 @@ export async function action({ request, params }: Route.ActionArgs) {
         ? `Students of this course now sign in through their institution only${endedSessions ? `; ${endedSessions} password session${endedSessions === 1 ? " was" : "s were"} ended` : ""}. Staff keep their passwords.`
         : "Students of this course may sign in with a password again.",
     });
+  }
+  if (intent === "time-zone") {
+    const result = await setCourseTimeZone(user, course.id, form.get("timeZone"));
+    if (!result.ok) return reply({ errors: result.errors, values: {}, notice: null }, 400);
+    return reply({ errors: {}, values: {}, notice: `Deadlines are now entered and shown on the ${form.get("timeZone")} clock. Deadlines already set keep their moment.` });
   }
   if (intent === "invite") {
     const result = await inviteToCourse(user, course.id, { email: form.get("email"), displayName: form.get("displayName"), role: form.get("role") });
@@ -186,6 +193,17 @@ export default function CoursePage({ loaderData, actionData }: Route.ComponentPr
                   <Button busy={busy}>Add and invite</Button>
                 </Form>
                 <p className="mt-3 text-sm text-ink-soft">People new to Ratebook get an e-mail with a link to choose a password; the link works once, for 7 days.</p>
+              </section>
+            ) : null}
+            {editable ? (
+              <section aria-labelledby="zone-h" className="rounded border border-rule bg-white p-4">
+                <h2 id="zone-h" className="mb-2 text-xl font-bold">Time zone</h2>
+                <p className="mb-3 text-sm text-ink-soft">The lab's clock: deadlines are entered and shown in it. Now {course.timeZone}.</p>
+                <Form method="post" noValidate>
+                  <input type="hidden" name="intent" value="time-zone" />
+                  <SelectField label="Time zone of this course" name="timeZone" options={loaderData.timeZones} defaultValue={course.timeZone} error={actionData?.intent === "time-zone" ? actionData.errors.timeZone : undefined} />
+                  <Button busy={busy}>Save time zone</Button>
+                </Form>
               </section>
             ) : null}
             {loaderData.mayCopy ? (

@@ -39,7 +39,7 @@ export async function loader({ request, params }: Route.LoaderArgs) {
   const { course } = await requireCourseFromPath(request, params.courseId, ["instructor"]);
   const systems = await reactionSystemsOf(course.id);
   return {
-    course: { id: course.id, code: course.code, title: course.title },
+    course: { id: course.id, code: course.code, title: course.title, timeZone: course.timeZone },
     systems: systems.map((s) => ({ id: s.id, name: s.name, a: s.coeffA, b: s.coeffB, speciesA: s.speciesA, speciesB: s.speciesB })),
     // what the default rubric gives the example runs on the first reaction system (staff only page)
     example: systems.length ? rubricExampleFor(systems[0], DEFAULT_RUBRIC) : null,
@@ -198,7 +198,7 @@ export default function DesignPractical({ loaderData, actionData: answer }: Rout
             <Field label="Title" name="title" defaultValue={v("title")} error={e("title")} />
             <div className="grid grid-cols-2 gap-x-4">
               <Field label="Lab day" name="date" type="date" defaultValue={v("date")} error={e("date")} />
-              <Field label="Upload deadline (UTC)" name="deadline" type="datetime-local" defaultValue={v("deadline")} error={e("deadline")} />
+              <Field label={`Upload deadline (${loaderData.course.timeZone})`} name="deadline" type="datetime-local" defaultValue={v("deadline")} error={e("deadline")} hint="On the course's clock" />
             </div>
             <div className="mb-4">
               <label htmlFor="f-reactionSystemId" className="block font-bold">Reaction system</label>

@@ -160,7 +160,7 @@ export default function GroupSubmissions({ loaderData, actionData }: Route.Compo
       <PageTitle trail={trailFor("Upload readings", loaderData.place.course, loaderData.place.practical)} sub={<>{practical.title} · {practical.date} · bench {practical.bench}: CA0 {sig(practical.CA0)} mol/L, CB0 {sig(practical.CB0)} mol/L, {sig(practical.temperatureC, 3)} °C</>}>
         Upload readings: {group.name}
       </PageTitle>
-      {deadline ? <p className="mb-4 text-sm">Deadline {formatDateTime(deadline)}. Files sent later are accepted and marked late.</p> : null}
+      {deadline ? <p className="mb-4 text-sm">Deadline {formatDateTime(deadline, loaderData.place.course?.timeZone)}. Files sent later are accepted and marked late.</p> : null}
 
       {submitErrors.length ? <FormMessage tone="error">{submitErrors.map((e) => `${e.path ? `${e.path}: ` : ""}${e.message}`).join(" ")}</FormMessage> : null}
 

@@ -14,6 +14,8 @@ import { fieldError, typed, type FormResult } from "~/lib/form-result";
 import { Button, Field, FormMessage } from "~/components/form";
 import { PageTitle, TableBox } from "~/components/page";
 import { trailFor } from "~/lib/place";
+import { formatDateTime } from "~/lib/dates";
+import { wallTime } from "~/lib/time-zone";
 
 export const meta: Route.MetaFunction = ({ data }) => [{ title: `${data?.view.title ?? "Practical"} · Ratebook` }];
 
@@ -24,7 +26,7 @@ export async function loader({ request, params }: Route.LoaderArgs) {
   const groups = access.staff ? naturalSort(await Group.findAll({ where: { courseId: access.session.courseId } }), (g) => g.name).map((g) => ({ id: g.id, name: g.name })) : [];
   // after "Copy this practical" the new practical's page says what the copy holds and what comes next
   const copied = access.staff && new URL(request.url).searchParams.has("copied");
-  return { view, groups, role: access.role, staff: access.staff, copied, course: { id: access.course.id, code: access.course.code } };
+  return { view, groups, role: access.role, staff: access.staff, copied, course: { id: access.course.id, code: access.course.code, timeZone: access.course.timeZone } };
 }
 
 type ActionData = { tone: "info" | "error"; message: string; benchId?: number; details?: FormResult; confirmRemove?: boolean };
@@ -75,7 +77,8 @@ export async function action({ request, params }: Route.ActionArgs) {
     if (submission.status !== "success") {
       return data<ActionData>({ tone: "error", message: "Check the practical's details.", details: submission.reply() }, { status: 400 });
     }
-    await updateSessionDetails(user, access.session, submission.value);
+    const saved = await updateSessionDetails(user, access.session, submission.value);
+    if (!saved.ok) return data<ActionData>({ tone: "error", message: "Check the practical's details.", details: submission.reply({ fieldErrors: saved.errors }) }, { status: 400 });
     return reply("info", `Details saved.${access.session.notifiedAt ? " The groups were already told: the change is in the audit log." : ""}`);
   }
   return reply("error", `Unknown action "${intent}".`, 400);
@@ -87,7 +90,7 @@ export default function PracticalPage({ loaderData, actionData }: Route.Componen
   const isInstructor = role === "instructor";
   return (
     <>
-      <PageTitle trail={trailFor(null, course, view)} sub={<>{view.date} · {view.slotMinutes} min slot, {view.setupMinutes} min set-up · {view.reaction.name} · status: {view.status}</>}>
+      <PageTitle trail={trailFor(null, course, view)} sub={<>{view.date} · {view.slotMinutes} min slot, {view.setupMinutes} min set-up · {view.reaction.name} · status: {view.status}{view.deadline ? <> · deadline {formatDateTime(view.deadline, course.timeZone)}</> : null}</>}>
         {view.title}
       </PageTitle>
       {actionData ? <FormMessage tone={actionData.tone}>{actionData.message}</FormMessage> : null}
@@ -210,7 +213,7 @@ export default function PracticalPage({ loaderData, actionData }: Route.Componen
                       <>
                         {f("title", "Title", view.title)}
                         {f("date", "Lab day", view.date, "date")}
-                        {f("deadline", "Upload deadline (UTC)", view.deadline ? view.deadline.slice(0, 16) : "", "datetime-local")}
+                        {f("deadline", `Upload deadline (${course.timeZone})`, view.deadline ? wallTime(new Date(view.deadline), course.timeZone) : "", "datetime-local")}
                         {f("slotMinutes", "Slot (min)", String(view.slotMinutes))}
                         {f("setupMinutes", "Set-up (min)", String(view.setupMinutes))}
                         {f("samplingIntervalS", "Sampling interval (s)", String(view.samplingIntervalS))}
