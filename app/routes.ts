@@ -9,6 +9,13 @@ export default [
   // Single sign-on through the institution's OpenID Connect provider (off unless configured).
   route("sign-in/institution", "routes/auth/sso-start.tsx"),
   route("sign-in/institution/return", "routes/auth/sso-return.tsx"),
+  // LTI 1.3 launches from a registered learning platform (login initiation, the signed launch,
+  // and the page that says why a launch was refused).
+  ...prefix("lti", [
+    route("login", "routes/lti/login.ts"),
+    route("launch", "routes/lti/launch.ts"),
+    route("problem", "routes/lti/problem.tsx"),
+  ]),
   route("sign-out", "routes/auth/sign-out.tsx"),
   route("invitation/:token", "routes/auth/invitation.tsx"),
   ...prefix("password", [
@@ -57,6 +64,7 @@ export default [
       route("mail", "routes/admin/mail.tsx"),
       route("audit", "routes/admin/audit.tsx"),
       route("jobs", "routes/admin/jobs.tsx"),
+      route("lti", "routes/admin/lti.tsx"),
     ]),
   ]),
 

@@ -58,6 +58,27 @@ if (!process.env.OIDC_ISSUER) {
   console.log(`[sso] fake institution (OpenID provider) on ${institution.issuer}`);
 }
 
+// LTI 1.3: the fake learning platform (invented courses and people), registered in the demo
+// database as an admin would, so its launches open Ratebook (scripts/lib/fake-platform.ts).
+let learningPlatform: Awaited<ReturnType<typeof import("./lib/fake-platform").startFakePlatform>> | null = null;
+if (process.env.FAKE_PLATFORM !== "0") {
+  const { startFakePlatform } = await import("./lib/fake-platform");
+  const ltiPort = Number(process.env.FAKE_PLATFORM_PORT ?? 3092);
+  const appUrl = (process.env.APP_URL ?? `http://localhost:${port}`).replace(/\/$/, "");
+  try {
+    learningPlatform = await startFakePlatform({ port: ltiPort, clientId: "ratebook-demo-tool", deploymentId: "demo-deployment-1", toolLoginUrl: `${appUrl}/lti/login`, toolLaunchUrl: `${appUrl}/lti/launch` });
+  } catch (error) {
+    if ((error as NodeJS.ErrnoException).code !== "EADDRINUSE") throw error;
+    console.error(`[lti] port ${ltiPort} is taken: is another \`npm start\` running? Stop it, or choose another port with FAKE_PLATFORM_PORT (FAKE_PLATFORM=0 leaves it out).`);
+    process.exit(1);
+  }
+  const { LtiPlatform } = await import("../app/.server/db/lti.server");
+  const fields = { name: "Fake Platform (local demo, invented)", loginUrl: learningPlatform.loginUrl, keySetUrl: learningPlatform.keySetUrl, tokenUrl: null, deploymentIds: [learningPlatform.deploymentId], createdById: null };
+  const [row, created] = await LtiPlatform.findOrCreate({ where: { issuer: learningPlatform.issuer, clientId: learningPlatform.clientId }, defaults: { issuer: learningPlatform.issuer, clientId: learningPlatform.clientId, ...fields } });
+  if (!created) await row.update(fields);
+  console.log(`[lti] fake learning platform on ${learningPlatform.issuer} (its launch links: ${learningPlatform.issuer}/)`);
+}
+
 // The demo runs the job-queue worker (e-mail, marking) in this process; production runs
 // `npm run worker` on machines of its own.
 const { keepWorkerRunning } = await import("../app/.server/jobs/worker.server");
@@ -111,6 +132,7 @@ for (const sig of ["SIGINT", "SIGTERM"] as const) process.on(sig, () => server.k
 server.on("exit", async (code) => {
   await worker.stop().catch(() => undefined);
   await institution?.close();
+  await learningPlatform?.close();
   await db.close();
   process.exit(code ?? 0);
 });

@@ -18,6 +18,7 @@ export function navFor(role: Role, courseStaff: boolean): NavItem[] {
       { to: "/admin/mail", label: "Sent mail" },
       { to: "/admin/audit", label: "Audit log" },
       { to: "/admin/jobs", label: "Job queue" },
+      { to: "/admin/lti", label: "Learning platforms" },
     );
   }
   return items;

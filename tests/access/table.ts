@@ -48,6 +48,11 @@ export const ACCESS: Record<string, RouteAccess> = {
   // sign-in in progress in this browser is a page saying so.
   "routes/auth/sso-start.tsx": { url: "/sign-in/institution", get: [302, 302, 302, 302, 302, 302], post: [405, 405, 405, 405, 405, 405] },
   "routes/auth/sso-return.tsx": { url: "/sign-in/institution/return?code=x&state=y", get: [400, 400, 400, 400, 400, 400], post: [405, 405, 405, 405, 405, 405], screens: ["signedOut"] },
+  // LTI 1.3: login initiation and launch are the platform's to call; without a valid request they
+  // send everyone to the page that says why (303); that page without a refused launch is a 404.
+  "routes/lti/login.ts": { url: "/lti/login", get: [303, 303, 303, 303, 303, 303], post: [303, 303, 303, 303, 303, 303] },
+  "routes/lti/launch.ts": { url: "/lti/launch", get: [303, 303, 303, 303, 303, 303], post: [303, 303, 303, 303, 303, 303] },
+  "routes/lti/problem.tsx": { url: "/lti/problem", get: [404, 404, 404, 404, 404, 404], post: NO_ACTION_PAGE, screens: ["signedOut"] },
   "routes/auth/sign-out.tsx": { url: "/sign-out", get: [302, 302, 302, 302, 302, 302], post: [302, 302, 302, 302, 302, 302], endsSession: true },
   "routes/auth/invitation.tsx": { url: "/invitation/{badToken}", get: [200, 200, 200, 200, 200, 200], post: [400, 400, 400, 400, 400, 400], screens: ["signedOut"] },
   "routes/auth/password-forgot.tsx": { url: "/password/forgot", get: [200, 200, 200, 200, 200, 200], post: [400, 400, 400, 400, 400, 400], screens: ["signedOut"] },
@@ -80,6 +85,7 @@ export const ACCESS: Record<string, RouteAccess> = {
   "routes/admin/mail.tsx": { url: "/admin/mail", get: ADMIN_ONLY, post: NO_ACTION_PAGE, screens: ["admin"] },
   "routes/admin/audit.tsx": { url: "/admin/audit", get: ADMIN_ONLY, post: NO_ACTION_PAGE, screens: ["admin"] },
   // The job queue: admins read it and retry failed jobs (an empty form is 400).
+  "routes/admin/lti.tsx": { url: "/admin/lti", get: ADMIN_ONLY, post: [302, 400, 403, 403, 403, 403], screens: ["admin"] },
   "routes/admin/jobs.tsx": { url: "/admin/jobs", get: ADMIN_ONLY, post: [302, 400, 403, 403, 403, 403], screens: ["admin"] },
 
   "routes/api/me.ts": { url: "/api/me", get: [401, 200, 200, 200, 200, 200], post: API_NO_METHOD },

@@ -16,6 +16,7 @@ import "~/.server/db/reaction-systems.server";
 import "~/.server/db/submissions.server";
 import "~/.server/db/user-session.server";
 import "~/.server/db/user-identity.server";
+import "~/.server/db/lti.server";
 
 interface Column {
   table_name: string;

@@ -7,6 +7,9 @@ export const TEST_MAIL_HTTP_PORT = Number(process.env.TEST_MAIL_HTTP_PORT ?? 253
 export const TEST_APP_PORT = Number(process.env.TEST_APP_PORT ?? 3100);
 /** The fake institution's OpenID provider (scripts/lib/fake-institution.ts), 50 above the app's test port unless set. */
 export const TEST_OIDC_PORT = Number(process.env.TEST_OIDC_PORT ?? TEST_APP_PORT + 50);
+/** The fake learning platform (scripts/lib/fake-platform.ts), 51 above the app's test port unless set. */
+export const TEST_LTI_PORT = Number(process.env.TEST_LTI_PORT ?? TEST_APP_PORT + 51);
+export const TEST_LTI = { clientId: "ratebook-tool-test", deploymentId: "dep-test-1" };
 export const TEST_OIDC_CLIENT = {
   client_id: "ratebook-test",
   client_secret: "test-only-oidc-client-secret",

@@ -6,8 +6,8 @@ describe("navigation per role", () => {
     expect(navFor("member", false).map((i) => i.to)).toEqual(["/dashboard"]);
     expect(navFor("member", true).map((i) => i.to)).toEqual(["/dashboard", "/fit-check"]);
   });
-  test("course creators may create courses; admins also manage people, mail, the audit log and the job queue", () => {
+  test("course creators may create courses; admins also manage people, mail, the audit log, the job queue and the learning platforms", () => {
     expect(navFor("course-creator", false).map((i) => i.to)).toEqual(["/dashboard", "/courses/new", "/fit-check"]);
-    expect(navFor("admin", false).map((i) => i.to)).toEqual(["/dashboard", "/courses/new", "/fit-check", "/admin/people", "/admin/mail", "/admin/audit", "/admin/jobs"]);
+    expect(navFor("admin", false).map((i) => i.to)).toEqual(["/dashboard", "/courses/new", "/fit-check", "/admin/people", "/admin/mail", "/admin/audit", "/admin/jobs", "/admin/lti"]);
   });
 });

@@ -2,7 +2,7 @@
 import { DataTypes, Model, type CreationOptional, type ForeignKey, type InferAttributes, type InferCreationAttributes } from "sequelize";
 import { sequelize, User } from "./models.server";
 
-export type SessionVia = "password" | "sso";
+export type SessionVia = "password" | "sso" | "lti";
 
 export class UserSession extends Model<InferAttributes<UserSession>, InferCreationAttributes<UserSession>> {
   declare id: CreationOptional<number>;
