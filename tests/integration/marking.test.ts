@@ -76,18 +76,61 @@ describe("marking", () => {
     expect(s.autoMark).toBe(60);
   });
 
-  test("a marking failure is recorded and shown to staff", async () => {
-    // readings the engine refuses: a negative concentration
+  test("readings the marking would refuse are refused at upload (422) with the engine's message in the file's rows", async () => {
+    // a negative concentration (row 4 of the file, -3 mmol/L against a 20 mmol/L feed)
     const res: Response = await call(upload, uploadRequest(`/api/groups/${p.groups[2].id}/submissions`, cookies[2], { bytes: "t / min,CA (mmol/L)\n0,20\n2,15\n4,-3\n6,9\n8,7\n", name: "neg.csv" }, { measured: "concentrationA" }), { groupId: String(p.groups[2].id) });
-    const { id } = (await res.json()) as { id: number };
+    expect(res.status).toBe(422);
+    const body = (await res.json()) as any;
+    expect(body.status).toBe("refused");
+    expect(body.errors[0].message).toBe("neg.csv: Row 4 of the file, column B (CA (mmol/L)): a concentration cannot be negative (-3 is below zero by more than reading noise).");
+    expect((await Submission.findByPk(body.id))!.status).toBe("refused");
+  });
+
+  test("a marking failure is recorded and shown, with its reason, to staff and to the group", async () => {
+    // a version stored before the upload checks existed: its readings are only refused by the job
+    const id = await submitRun(2, "none");
+    await sequelize.query("update submissions set readings = jsonb_set(readings, '{points,2,1}', to_jsonb(-((readings->'points'->0->>1)::float8) / 2)) where id = :id", { replacements: { id } });
     await runJobsUntilIdle();
     const s = (await Submission.findByPk(id))!;
     expect(s.status).toBe("failed");
-    expect(s.markingError).toMatch(/points\[2\]\[1\]: a concentration cannot be negative/);
+    expect(s.markingError).toMatch(/^Row 4 of the file, column B \(.*\): a concentration cannot be negative/);
     const queue = payloadOf(await call(queuePage, request(`/sessions/${p.session.id}/review`, { cookie: staff }), { sessionId: String(p.session.id) }));
     const row = queue.rows.find((r: any) => r.groupId === p.groups[2].id);
     expect(row.latest).toMatchObject({ status: "failed", tab: "flagged" });
     expect(row.latest.markingError).toMatch(/cannot be negative/);
+    const mine = await ((await call(apiSubmission, request(`/api/submissions/${id}`, { cookie: cookies[2] }), { submissionId: String(id) })) as Response).json();
+    expect(mine).toMatchObject({ status: "failed", markingError: expect.stringMatching(/Row 4 of the file.*cannot be negative/) });
+    const page = payloadOf(await call(feedbackPage, request(`/submissions/${id}`, { cookie: cookies[2] }), { submissionId: String(id) }));
+    expect(page.view.status).toBe("failed");
+    // a new, honest version is marked as usual
+    const again = await submitRun(2, "none");
+    await runJobsUntilIdle();
+    expect((await Submission.findByPk(again))!.status).toBe("marked");
+  });
+
+  test("a version whose marking job used up its tries is not left waiting: release settles it as failed, with the reason", async () => {
+    const id = await submitRun(2, "none");
+    await sequelize.query(
+      "select graphile_worker.permanently_fail_jobs(array(select j.id from graphile_worker._private_jobs j join graphile_worker._private_tasks t on t.id = j.task_id where t.identifier = 'mark-submission' and (j.payload->>'submissionId')::int = :id), 'worker lost the database')",
+      { replacements: { id } },
+    );
+    const waiting = (await Submission.findByPk(id))!;
+    expect(waiting.status).toBe("queued");
+    const { settleStoppedMarking } = await import("~/.server/submissions/review.server");
+    expect(await settleStoppedMarking(p.session.id)).toBe(1);
+    const s = (await Submission.findByPk(id))!;
+    expect(s.status).toBe("failed");
+    expect(s.markingError).toMatch(/its marking job stopped after its last try \(worker lost the database\)/);
+    const mine = await ((await call(apiSubmission, request(`/api/submissions/${id}`, { cookie: cookies[2] }), { submissionId: String(id) })) as Response).json();
+    expect(mine).toMatchObject({ status: "failed", markingError: expect.stringMatching(/could not be marked/) });
+    // staff mark it again from the review page (audited)
+    const params = { sessionId: String(p.session.id), submissionId: String(id) };
+    const again = payloadOf(await call(reviewAction, request(`/sessions/${p.session.id}/review/${id}`, { cookie: staff, form: { intent: "mark-again" } }), params));
+    expect(again.ok).toMatch(/Marked again/);
+    expect((await Submission.findByPk(id))!.status).toBe("marked");
+    expect(await AuditEntry.count({ where: { action: "submission.marked-again", entityId: String(id) } })).toBe(1);
+    // the dead job stays for the job page; take it away so the job-path test below starts clean
+    await sequelize.query("delete from graphile_worker._private_jobs j using graphile_worker._private_tasks t where t.id = j.task_id and t.identifier = 'mark-submission' and (j.payload->>'submissionId')::int = :id", { replacements: { id } });
   });
 });
 

@@ -156,3 +156,73 @@ describe("times written as mm:ss, h:mm:ss or clock times", () => {
     expect(s.autoMark).toBe(100);
   });
 });
+
+describe("readings the marking would refuse are refused when the file arrives (422), never left waiting", () => {
+  const truth = () => benchTruth(p, p.benches[2], everyS(120, 3600));
+  const csvOf = (header: string, values: number[], t: ReturnType<typeof truth>) => [header, ...t.t.map((x, i) => `${x / 60},${sig4(values[i])}`)].join("\n") + "\n";
+  async function refusedAtUpload(file: { bytes: string | Uint8Array; name: string; type?: string }, fields: Record<string, string> = {}, g = 2) {
+    const r = await send(g, file, fields);
+    expect(r.status).toBe(422);
+    expect(r.body.status).toBe("refused");
+    const [jobs] = await Submission.sequelize!.query("select 1 from graphile_worker._private_jobs j where (j.payload->>'submissionId')::int = :id", { replacements: { id: r.body.id } });
+    expect(jobs).toEqual([]);
+    expect((await Submission.findByPk(r.body.id))!.status).toBe("refused");
+    return r.body.errors[0].message as string;
+  }
+
+  test("percent conversion uploaded as a concentration: refused, the cause and the fix named; the preview refuses it too", async () => {
+    const t = truth();
+    const CA0 = p.benches[2].CA0;
+    const file = { bytes: csvOf("t / min,CA (mol/L)", t.CA.map((c) => 100 * (1 - c / CA0)), t), name: "percent.csv" };
+    const message = await refusedAtUpload(file);
+    expect(message).toMatch(/^percent\.csv: The readings in column B \(CA \(mol\/L\)\) rise from 0 \(row 2\) to [\d.]+ \(row 32\), but the concentration of A can only fall as A reacts: they look like the conversion of A in percent \(0 to 100\), not a concentration\. Send CA = CA0·\(1 − X\/100\) \(CA0 = 0\.02 mol\/L for your bench\)/);
+    const pre = await previewOf(2, file);
+    expect(pre.body.refused).toMatch(/conversion of A in percent/);
+  });
+
+  test("fractional conversion uploaded as a concentration: refused, named as a fraction", async () => {
+    const t = truth();
+    const CA0 = p.benches[2].CA0;
+    const message = await refusedAtUpload({ bytes: csvOf("t / min,CA (mol/L)", t.CA.map((c) => 1 - c / CA0), t), name: "fraction.csv" });
+    expect(message).toMatch(/conversion of A as a fraction \(0 to 1\), not a concentration\. Send CA = CA0·\(1 − X\)/);
+  });
+
+  test("readings below zero by more than noise (a blank subtracted twice): refused naming the rows", async () => {
+    const t = truth();
+    const CA0 = p.benches[2].CA0;
+    const message = await refusedAtUpload({ bytes: csvOf("t / min,CA (mmol/L)", t.CA.map((c) => (c - 0.45 * CA0) * 1000), t), name: "blank-twice.csv" });
+    expect(message).toMatch(/^blank-twice\.csv: Row \d+ of the file, column B \(CA \(mmol\/L\)\): a concentration cannot be negative \(-[\d.]+ is below zero by more than reading noise\)\. The same in \d+ more rows: /);
+  });
+
+  test("an honest concentration file at the same bench still gets full marks (the checks refuse only what they name)", async () => {
+    const t = truth();
+    const s = await marked(2, { bytes: csvOf("t / min,CA (mmol/L)", t.CA.map((c) => c * 1000), t), name: "honest.csv" }, { reportedK: String(t.k) });
+    expect(s.autoMark).toBe(100);
+  });
+
+  test("%T uploaded as absorbance: refused with A = 2 − log10(%T); the honest absorbance file gets full marks", async () => {
+    // an invented absorbance practical: A absorbs, epsilon 40 L/(mol cm), 1 cm cell (Beer-Lambert)
+    const q = await makePractical("LAYOUT-ABS", { groups: 1 });
+    try {
+      await q.system.update({ measured: "absorbance", calibration: { epsilon: 40, pathCm: 1, absorbingSpecies: "A" } });
+      const c = await q.cookie(q.students[0]);
+      const t = benchTruth(q, q.benches[0], everyS(120, 3600));
+      const absorbance = t.CA.map((x) => 40 * 1 * x);
+      const sendQ = async (values: number[], name: string, fields: Record<string, string> = {}) => {
+        const res: Response = await call(upload, uploadRequest(`/api/groups/${q.groups[0].id}/submissions`, c, { bytes: csvOf("t / min,reading", values, t), name }, fields), { groupId: String(q.groups[0].id) });
+        return { status: res.status, body: (await res.json()) as any };
+      };
+      const pct = await sendQ(absorbance.map((a) => 100 * 10 ** -a), "transmittance.csv");
+      expect(pct.status).toBe(422);
+      expect(pct.body.errors[0].message).toMatch(/^transmittance\.csv: The readings in column B \(reading\) run from [\d.]+ to [\d.]+ \(row 32\): an absorbance above about 4 cannot be read, so these look like percent transmittance \(%T\), not absorbance\. Convert each reading to absorbance, A = 2 − log10\(%T\)/);
+      const honest = await sendQ(absorbance, "absorbance.csv", { reportedK: String(t.k) });
+      expect(honest.status).toBe(202);
+      await runJobsUntilIdle();
+      const s = (await Submission.findByPk(honest.body.id))!;
+      expect(s.status, s.markingError ?? "").toBe("marked");
+      expect(s.autoMark).toBe(100);
+    } finally {
+      await q.course.destroy();
+    }
+  });
+});

@@ -30,7 +30,7 @@ export const submissionsPart: ApiPart = {
         groupId: { type: "integer" },
         sessionId: { type: "integer" },
         version: { type: "integer" },
-        status: { type: "string", enum: ["queued", "marked", "refused", "failed"], description: "failed (marking failed) is shown to staff only; a group sees queued" },
+        status: { type: "string", enum: ["queued", "marked", "refused", "failed"], description: "failed: marking failed; the group and staff both see it, with markingError" },
         submittedAt: { type: "string" },
         late: { type: "boolean" },
         originalName: { type: ["string", "null"] },
@@ -44,7 +44,7 @@ export const submissionsPart: ApiPart = {
         reportedMethod: { type: ["string", "null"] },
         parts: { type: "object", description: "experimentPart, analysisPart, latePenalty, autoMark, overrideMark (percent); staff, and the group after release" },
         checks: { type: ["object", "null"], description: "staff only: kMarking, kLine, kRefAtT and both checks' deviations and bands" },
-        markingError: { type: ["string", "null"], description: "staff only" },
+        markingError: { type: ["string", "null"], description: "why marking failed: staff see it as stored, the group in its words (present for a failed version)" },
       },
     },
     SubmissionList: {
@@ -98,7 +98,7 @@ export const submissionsPart: ApiPart = {
         },
         responses: {
           "202": json(ref("SubmissionCreated"), "Stored; marking is queued. Location names the submission."),
-          "422": json({ type: "object", required: ["id", "version", "status", "errors"], properties: { id: { type: "integer" }, version: { type: "integer" }, status: { type: "string", enum: ["refused"] }, errors: ref("ValidationErrors") } }, "Stored but refused (empty, binary, no numeric column pair, fewer than 4 usable rows); the message says why."),
+          "422": json({ type: "object", required: ["id", "version", "status", "errors"], properties: { id: { type: "integer" }, version: { type: "integer" }, status: { type: "string", enum: ["refused"] }, errors: ref("ValidationErrors") } }, "Stored but refused (empty, binary, no numeric column pair, fewer than 4 usable rows, or readings the marking would refuse: conversion sent as a concentration, %T as absorbance, readings below zero by more than noise); the message says why and where."),
           "413": json(ref("ValidationErrors"), "The file is larger than 5 MB."),
           ...badRequest,
           ...errorResponses,

@@ -8,6 +8,7 @@ import { markRun, type MarkAttempt } from "~/lib/marking/mark-run";
 import type { ConcentrationUnit, TimeUnit } from "~/lib/kinetics/units";
 import { markingContext, practicalOfSubmission } from "./context.server";
 import { trimFit } from "./service.server";
+import { columnText } from "~/lib/readings/table";
 
 /** The engine and rubric on a submission's stored readings (with its exclusions). */
 export async function computeMark(s: Submission, transaction?: Transaction): Promise<MarkAttempt | { ok: false; errors: Array<{ path: string; message: string }> }> {
@@ -25,6 +26,7 @@ export async function computeMark(s: Submission, transaction?: Transaction): Pro
     reportedMethod: s.reportedMethod,
     late: s.late,
     excludedRows: (s.excluded ?? []).map((e) => e.row),
+    columns: { time: columnText(s.readings.time), value: columnText(s.readings.value) },
   });
 }
 
@@ -33,7 +35,7 @@ export function markColumns(attempt: Awaited<ReturnType<typeof computeMark>>) {
   if (!attempt.ok) {
     return {
       status: "failed" as const,
-      markingError: attempt.errors.map((e) => `${e.path || "request"}: ${e.message}`).join("; "),
+      markingError: attempt.errors.map((e) => (e.path ? `${e.path}: ${e.message}` : e.message)).join("; "),
       fit: null, flags: [], feedback: [], checks: null, experimentPart: null, analysisPart: null, latePenalty: null, autoMark: null,
     };
   }

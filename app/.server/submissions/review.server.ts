@@ -120,6 +120,17 @@ export async function excludeReading(actor: User, submission: Submission, row: n
   });
 }
 
+/** Marks a failed version again (after the practical's settings or the engine were put right); audited. */
+export async function markAgain(actor: User, submission: Submission) {
+  if (submission.status !== "failed") problem("Only a version whose marking failed can be marked again.", 409);
+  await getSequelize().transaction(async (transaction) => {
+    const before = { status: submission.status, markingError: submission.markingError };
+    const cols = markColumns(await computeMark(submission));
+    await submission.update({ ...cols, markedAt: new Date(), markingRuns: submission.markingRuns + 1 }, { transaction });
+    await recordAudit({ actorId: actor.id, action: "submission.marked-again", entityType: "submission", entityId: submission.id, before, after: { status: cols.status, markingError: cols.markingError, autoMark: cols.autoMark } }, transaction);
+  });
+}
+
 /** Puts a left-out reading back; the mark is recomputed. */
 export async function includeReading(actor: User, submission: Submission, row: number) {
   if (!submission.excluded.some((e) => e.row === row)) problem(`Row ${row} is not left out.`, 409);
@@ -164,10 +175,42 @@ export async function releaseInfo(sessionId: number): Promise<{ releasedAt: Date
 }
 
 /**
+ * Versions still "queued" whose marking job will never run again (it used up its attempts, or is
+ * gone) become "failed" with the job's last error, so no version waits for ever: not before
+ * release (which would refuse for ever) and not after (the group would see "being marked").
+ * A job that is waiting or running is left alone.
+ */
+export async function settleStoppedMarking(sessionId: number): Promise<number> {
+  const [rows] = await getSequelize().query(
+    `select s.id, j.last_error as "lastError", (j.id is null) as gone
+       from submissions s
+       left join lateral (
+         select j.id, j.attempts, j.max_attempts, j.last_error
+           from graphile_worker._private_jobs j join graphile_worker._private_tasks t on t.id = j.task_id
+          where t.identifier = 'mark-submission' and (j.payload->>'submissionId')::int = s.id
+          order by j.id desc limit 1
+       ) j on true
+      where s.session_id = :sessionId and s.status = 'queued' and (j.id is null or j.attempts >= j.max_attempts)`,
+    { replacements: { sessionId } },
+  );
+  let settled = 0;
+  for (const r of rows as Array<{ id: number; lastError: string | null; gone: boolean }>) {
+    const why = r.gone ? "its marking job is gone" : `its marking job stopped after its last try (${(r.lastError ?? "no error recorded").slice(0, 200)})`;
+    const [n] = await Submission.update(
+      { status: "failed", markingError: `This version could not be marked: ${why}. Staff can mark it again from the review page; the group can upload the file again.`, markedAt: new Date() },
+      { where: { id: r.id, status: "queued" } },
+    );
+    settled += n;
+  }
+  return settled;
+}
+
+/**
  * Releases a practical's marks: students can then see their feedback page. Each member of each
  * group with a submission gets an e-mail, sent through the job queue in the same transaction.
  */
 export async function releaseMarks(actor: User, session: LabSession, showReference: boolean): Promise<{ mails: number }> {
+  await settleStoppedMarking(session.id);
   const subs = await Submission.findAll({ where: { sessionId: session.id }, attributes: ["groupId", "status"] });
   const pending = subs.filter((s) => s.status === "queued").length;
   if (pending) problem(`${pending} submission(s) are still being marked; release when marking has finished.`, 409);

@@ -14,7 +14,7 @@ import { Refusal } from "~/lib/readings/csv";
 import { parseStart } from "~/lib/readings/clock-times";
 import { extractPoints, guessColumns, timeUnitFrom, concentrationUnitFrom, type ReadingProblem } from "~/lib/readings/extract";
 import { columnText, describeTable, numericColumns } from "~/lib/readings/table";
-import { previewRun } from "~/lib/marking/mark-run";
+import { previewRun, rangeCheck } from "~/lib/marking/mark-run";
 import { runPlots, type RunPlots } from "~/lib/marking/plots";
 import { REPORTED_METHODS } from "~/lib/marking/feedback";
 import { CONCENTRATION_UNITS, TIME_UNITS, type ConcentrationUnit, type TimeUnit } from "~/lib/kinetics/units";
@@ -123,6 +123,31 @@ export async function parseUpload(file: UploadedFile, choices: UploadChoices, me
   }
 }
 
+/** The engine's view of what was read: the pairs, their rows and units, the columns' names. */
+export function runOf(parsed: ParsedUpload, choices: UploadChoices) {
+  const name = (c: StoredReadings["time"]) => columnText(c);
+  return {
+    points: parsed.readings.points,
+    rowNumbers: parsed.readings.rowNumbers,
+    timeUnit: parsed.timeUnit,
+    concentrationUnit: parsed.concentrationUnit,
+    measured: choices.measured,
+    columns: { time: name(parsed.readings.time), value: name(parsed.readings.value) },
+  };
+}
+
+/**
+ * The file read and range-checked as the marking job will check it (mark-run.ts rangeCheck): a
+ * file the job would refuse is refused now, with the same message, instead of waiting for ever.
+ */
+export async function uploadChecked(practical: PracticalOfGroup, file: UploadedFile, choices: UploadChoices): Promise<ParseOutcome> {
+  const parsed = await parseUpload(file, choices, practical.system.measured);
+  if (!parsed.ok) return parsed;
+  const checked = rangeCheck(markingContext(practical), { ...runOf(parsed, choices), reportedK: null, reportedMethod: null, late: false, excludedRows: [] });
+  if (!checked.ok) return { ok: false, message: `${file.name}: ${checked.message}`, columns: parsed.columns };
+  return parsed;
+}
+
 function badRequest(problems: FieldProblem[], api: boolean): never {
   if (api) throw Response.json({ errors: problems }, { status: 400 });
   throw data({ message: problems.map((p) => `${p.path}: ${p.message}`).join("; ") }, { status: 400 });
@@ -164,8 +189,10 @@ export async function previewUpload(practical: PracticalOfGroup, file: UploadedF
     plots: null, n: 0, fit: null, fitErrors: [], expectedLine: "",
   };
   if (!parsed.ok) return { ...base, refused: parsed.message };
-  const run = { points: parsed.readings.points, rowNumbers: parsed.readings.rowNumbers, timeUnit: parsed.timeUnit, concentrationUnit: parsed.concentrationUnit, measured: choices.measured };
+  const run = { ...runOf(parsed, choices) };
   const fit = previewRun(ctx, run);
+  // what the upload would refuse, the preview refuses with the same words (and the page will not send it)
+  if (!fit.ok) return { ...base, time: parsed.readings.time, value: parsed.readings.value, timeUnit: parsed.timeUnit, concentrationUnit: parsed.concentrationUnit, problems: parsed.problems, notes: parsed.readings.notes, n: parsed.readings.points.length, refused: fit.message };
   const result = fit.ok ? trimFit(fit.result) : null;
   return {
     ...base,
@@ -178,7 +205,7 @@ export async function previewUpload(practical: PracticalOfGroup, file: UploadedF
     plots: result ? runPlots(result, parsed.readings.points) : null,
     n: parsed.readings.points.length,
     fit: result,
-    fitErrors: fit.ok ? [] : fit.errors,
+    fitErrors: [],
     expectedLine: result?.line.form ?? "",
   };
 }
@@ -220,7 +247,7 @@ export async function createSubmission(user: User, groupId: number, file: Upload
   }
   const { choices, problems } = readChoices(fields, practical.system.measured);
   if (problems.length) badRequest(problems, api);
-  const parsed = await parseUpload(file, choices, practical.system.measured);
+  const parsed = await uploadChecked(practical, file, choices);
   const sha256 = createHash("sha256").update(file.bytes).digest("hex");
   const now = new Date();
   const late = practical.session.deadline ? now > practical.session.deadline : false;

@@ -19,6 +19,13 @@ export function studentFit(fit: unknown): FitResult | null {
   return f;
 }
 
+/** The reason a version failed, for the group: a practical's own settings are named, not quoted. */
+function groupWords(error: string | null): string {
+  if (!error) return "The readings could not be marked. Upload the file again, or ask your instructor.";
+  if (/\breference\b|kRef|EaKJ|TrefC/.test(error)) return "The practical's settings could not be used to mark this version; your instructor sees why.";
+  return error;
+}
+
 export interface SubmissionView {
   id: number;
   groupId: number;
@@ -45,6 +52,7 @@ export interface SubmissionView {
   /** staff only */
   checks?: unknown;
   overrideReason?: string | null;
+  /** why marking failed (staff: as stored; the group: in its words) */
   markingError?: string | null;
   excluded?: unknown;
   reviewState?: string;
@@ -67,7 +75,8 @@ function viewOf(s: Submission, viewer: Viewer, release: { releasedAt: Date | nul
     groupId: s.groupId,
     sessionId: s.sessionId,
     version: s.version,
-    status: s.status === "failed" && viewer !== "staff" ? "queued" : s.status,
+    // a failed version shows as failed, with its reason, to the group too (never "being marked")
+    status: s.status,
     submittedAt: s.submittedAt.toISOString(),
     late: s.late,
     originalName,
@@ -84,6 +93,7 @@ function viewOf(s: Submission, viewer: Viewer, release: { releasedAt: Date | nul
     reportedMethod: s.reportedMethod,
     readings: s.readings ? { time: s.readings.time, value: s.readings.value, n: s.readings.points.length, notes: s.readings.notes } : null,
     ownLine: null,
+    ...(s.status === "failed" ? { markingError: groupWords(s.markingError) } : {}),
   };
   if (viewer === "staff") {
     return {

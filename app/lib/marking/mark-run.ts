@@ -8,6 +8,7 @@ import { feedbackLines } from "./feedback.ts";
 import { handLineK, markingK } from "./engine-result.ts";
 import type { MarkingRubric } from "./rubric.ts";
 import { withFileRows } from "./rows.ts";
+import { engineErrorsText, readingKindProblem, type ColumnNames } from "./range-checks.ts";
 
 export interface MarkingContext {
   reaction: { a: number; b: number; orderA: number; orderB: number };
@@ -34,6 +35,8 @@ export interface RunInput {
   late: boolean;
   /** file rows a reviewer left out */
   excludedRows: number[];
+  /** how the time and value columns are named in messages ("column B (CA)") */
+  columns?: ColumnNames;
 }
 
 export interface MarkOutcome {
@@ -82,10 +85,28 @@ export function buildRequest(ctx: MarkingContext, run: RunInput, withReference: 
   return { request, rowNumbers };
 }
 
-export function markRun(ctx: MarkingContext, run: RunInput): MarkAttempt {
-  const { request, rowNumbers } = buildRequest(ctx, run, true);
+export type RangeCheck = { ok: true; request: FitRequest; rowNumbers: number[] } | { ok: false; message: string; errors: Array<{ path: string; message: string }> };
+
+/**
+ * The range checks (range-checks.ts): run when a file arrives, so that a file the marking job
+ * would refuse is refused at once (422) with the same message, and again by the job.
+ */
+export function rangeCheck(ctx: MarkingContext, run: RunInput, withReference = false): RangeCheck {
+  const { request, rowNumbers } = buildRequest(ctx, run, withReference);
+  const kind = readingKindProblem(request, rowNumbers, run.columns);
+  if (kind) return { ok: false, message: kind, errors: [{ path: "", message: kind }] };
   const checked = validateFitRequest(request);
+  if (!checked.ok) {
+    const message = engineErrorsText(checked.errors, rowNumbers, run.columns);
+    return { ok: false, message, errors: [{ path: "", message }] };
+  }
+  return { ok: true, request: checked.request, rowNumbers };
+}
+
+export function markRun(ctx: MarkingContext, run: RunInput): MarkAttempt {
+  const checked = rangeCheck(ctx, run, true);
   if (!checked.ok) return { ok: false, errors: checked.errors };
+  const rowNumbers = checked.rowNumbers;
   const result = runFit(checked.request);
   const kRefAtT = result.reference!.kAtT;
   const kMarking = markingK(result);
@@ -122,11 +143,10 @@ export function markRun(ctx: MarkingContext, run: RunInput): MarkAttempt {
 }
 
 /** The preview a group sees before submitting: the same fit with no reference value anywhere in it. */
-export function previewRun(ctx: MarkingContext, run: Omit<RunInput, "late" | "excludedRows" | "reportedK" | "reportedMethod">): { ok: true; result: FitResult; rowNumbers: number[] } | { ok: false; errors: Array<{ path: string; message: string }> } {
-  const { request, rowNumbers } = buildRequest(ctx, { ...run, late: false, excludedRows: [], reportedK: null, reportedMethod: null }, false);
-  const checked = validateFitRequest(request);
-  if (!checked.ok) return { ok: false, errors: checked.errors };
+export function previewRun(ctx: MarkingContext, run: Omit<RunInput, "late" | "excludedRows" | "reportedK" | "reportedMethod">): { ok: true; result: FitResult; rowNumbers: number[] } | { ok: false; message: string; errors: Array<{ path: string; message: string }> } {
+  const checked = rangeCheck(ctx, { ...run, late: false, excludedRows: [], reportedK: null, reportedMethod: null });
+  if (!checked.ok) return checked;
   const result = runFit(checked.request);
-  result.flags = withFileRows(result.flags, rowNumbers);
-  return { ok: true, result, rowNumbers };
+  result.flags = withFileRows(result.flags, checked.rowNumbers);
+  return { ok: true, result, rowNumbers: checked.rowNumbers };
 }

@@ -242,10 +242,10 @@ export default function GroupSubmissions({ loaderData, actionData }: Route.Compo
         </fieldset>
 
         <div className="mb-6 lg:col-span-2">
-          <button type="submit" disabled={sending || !fileName || !!sizeError || waiting || fetcher.state !== "idle"} className="rounded bg-accent px-4 py-2 font-bold text-accent-ink hover:opacity-90 disabled:opacity-60">
+          <button type="submit" disabled={sending || !fileName || !!sizeError || waiting || fetcher.state !== "idle" || !!preview?.refused} className="rounded bg-accent px-4 py-2 font-bold text-accent-ink hover:opacity-90 disabled:opacity-60">
             {sending ? "Sending…" : "Submit these readings"}
           </button>
-          <span className="ml-3 text-sm text-ink-soft">{fetcher.state !== "idle" || waiting ? "Updating the preview…" : fileName ? "The preview below shows what will be marked." : "Choose a file to see a preview."}</span>
+          <span className="ml-3 text-sm text-ink-soft">{fetcher.state !== "idle" || waiting ? "Updating the preview…" : preview?.refused ? "This file cannot be sent as it is: put right what the preview says, or choose another file." : fileName ? "The preview below shows what will be marked." : "Choose a file to see a preview."}</span>
         </div>
       </Form>
 

@@ -9,7 +9,7 @@ import { readForm } from "~/.server/body.server";
 import { whileDatabaseUp } from "~/.server/db/unavailable.server";
 import { requireSessionStaff } from "~/.server/submissions/context.server";
 import { loadSubmission } from "~/.server/submissions/access.server";
-import { addComment, excludeReading, includeReading, overrideMark, queueStops, queueTabOf, releaseInfo, reviewQueue, setReviewState } from "~/.server/submissions/review.server";
+import { addComment, excludeReading, includeReading, markAgain, overrideMark, queueStops, queueTabOf, releaseInfo, reviewQueue, setReviewState } from "~/.server/submissions/review.server";
 import { neighbours } from "~/lib/marking/queue";
 import { withFileRows, fileRowsText } from "~/lib/marking/rows";
 import { flagTitle } from "~/lib/marking/flag-titles";
@@ -99,6 +99,7 @@ export async function action({ request, params }: Route.ActionArgs) {
         }
         case "clear-override": await overrideMark(user, submission, null, text("reason") || "override removed"); return { ok: "The automatic mark applies again." };
         case "comment": await addComment(user, submission, text("body")); return { ok: "Comment added." };
+        case "mark-again": await markAgain(user, submission); return { ok: submission.status === "marked" ? "Marked again." : "Marked again; it still fails (the reason is above)." };
         case "checked": await setReviewState(user, submission, "checked"); return { ok: "Marked as checked." };
         case "unchecked": await setReviewState(user, submission, "to-check"); return { ok: "Back in the queue." };
         default: throw data({ message: "Unknown action." }, { status: 400 });
@@ -139,7 +140,12 @@ export default function ReviewSubmission({ loaderData, actionData }: Route.Compo
       <p className="mb-4 flex flex-wrap items-center gap-3"><StatusBadge status={view.status} late={view.late} /> <span>{{ flagged: "⚠ flagged", "to-check": "◌ to check", checked: "✓ checked" }[tab]}</span></p>
       {actionData && "ok" in actionData ? <FormMessage tone="info">{actionData.ok}</FormMessage> : null}
       {err && !err.field ? <FormMessage tone="error">{err.error}</FormMessage> : null}
-      {view.markingError ? <div role="alert" className="mb-4 rounded border-l-4 border-bad bg-bad-soft px-4 py-3"><strong>Marking failed:</strong> {view.markingError}</div> : null}
+      {view.markingError ? (
+        <div role="alert" className="mb-4 rounded border-l-4 border-bad bg-bad-soft px-4 py-3">
+          <strong>Marking failed:</strong> {view.markingError}
+          <Form method="post" className="mt-2"><input type="hidden" name="intent" value="mark-again" /><button type="submit" className="text-accent underline">Mark this version again</button></Form>
+        </div>
+      ) : null}
       {view.status === "refused" ? <div role="alert" className="mb-4 rounded border-l-4 border-bad bg-bad-soft px-4 py-3"><strong>Refused:</strong> {view.problems[0]?.message}</div> : null}
 
       <div className="grid gap-6 lg:grid-cols-3">

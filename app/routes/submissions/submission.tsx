@@ -67,7 +67,15 @@ export default function SubmissionPage({ loaderData }: Route.ComponentProps) {
         </div>
       ) : null}
 
-      {!showMark && view.status !== "refused" ? (
+      {view.status === "failed" ? (
+        <div role="alert" className="mb-4 rounded border-l-4 border-bad bg-bad-soft px-4 py-3">
+          <p className="font-bold">This version could not be marked:</p>
+          <p>{view.markingError}</p>
+          <p className="mt-2"><Link className="text-accent underline" to={`/groups/${group.id}/submissions`}>Upload a corrected file</Link> (this one is kept). Your instructor sees this too.</p>
+        </div>
+      ) : null}
+
+      {!showMark && view.status !== "refused" && view.status !== "failed" ? (
         <p className="rounded border-l-4 border-accent bg-accent-soft px-4 py-3">
           Your readings are stored. Marks and feedback appear here when your instructor releases them; until then you see what Ratebook read from your file.
         </p>
