@@ -5,9 +5,13 @@ import { afterAll, beforeAll, describe, expect, test } from "vitest";
 import { action as upload } from "~/routes/api/group-submissions";
 import { action as preview } from "~/routes/api/submission-preview";
 import { Submission } from "~/.server/db/submissions.server";
+import { AuditEntry } from "~/.server/db/models.server";
+import { sessionGradebook } from "~/.server/gradebook/session.server";
+import { courseGradebook } from "~/.server/gradebook/course.server";
+import { action as reviewAction } from "~/routes/sessions/review-submission";
 import { runJobsUntilIdle } from "~/.server/jobs/worker.server";
 import { closeSequelize } from "~/.server/db/sequelize.server";
-import { call } from "./helpers";
+import { call, payloadOf, request } from "./helpers";
 import { makePractical, uploadRequest, type Practical } from "./practical-fixture";
 import { benchTruth, clock, everyS, sig4, stopwatch, workbook } from "./bench-truth";
 
@@ -221,6 +225,53 @@ describe("readings the marking would refuse are refused when the file arrives (4
       const s = (await Submission.findByPk(honest.body.id))!;
       expect(s.status, s.markingError ?? "").toBe("marked");
       expect(s.autoMark).toBe(100);
+    } finally {
+      await q.course.destroy();
+    }
+  });
+});
+
+describe("the version that counts in the gradebook", () => {
+  test("the latest marked version counts, not a later refused or failed one; a reviewer may choose another; the course gradebook agrees", async () => {
+    const q = await makePractical("COUNT-T", { groups: 1 });
+    try {
+      const c = await q.cookie(q.students[0]);
+      const staff = await q.cookie(q.instructor);
+      const t = benchTruth(q, q.benches[0], everyS(120, 3600));
+      const honest = ["t / min,CA (mmol/L)", ...t.t.map((x, i) => `${x / 60},${sig4(t.CA[i] * 1000)}`)].join("\n");
+      const sendQ = async (file: { bytes: string | Uint8Array; name: string }, fields: Record<string, string> = {}) => {
+        const res: Response = await call(upload, uploadRequest(`/api/groups/${q.groups[0].id}/submissions`, c, file, { measured: "concentrationA", ...fields }), { groupId: String(q.groups[0].id) });
+        return { status: res.status, body: (await res.json()) as any };
+      };
+      const row = async () => (await sessionGradebook(q.session.id))!.rows[0];
+      const v1 = await sendQ({ bytes: honest, name: "run.csv" }, { reportedK: String(t.k) });
+      // version 2: the same readings, a reported k 20 % off the group's own line (analysis part lost)
+      const v2 = await sendQ({ bytes: honest, name: "run-again.csv" }, { reportedK: String(t.k * 1.2) });
+      await runJobsUntilIdle();
+      expect((await Submission.findByPk(v1.body.id))!.autoMark).toBe(100);
+      expect((await Submission.findByPk(v2.body.id))!.autoMark).toBe(60);
+      // version 3: an image renamed .csv (refused); version 4: a version whose marking fails
+      const png = new Uint8Array([0x89, 0x50, 0x4e, 0x47, 0x0d, 0x0a, 0x1a, 0x0a, 1, 2, 3]);
+      expect((await sendQ({ bytes: png, name: "photo-of-lab-book.csv" })).status).toBe(422);
+      const v4 = await sendQ({ bytes: honest, name: "last.csv" }, { reportedK: String(t.k) });
+      await Submission.sequelize!.query("update submissions set readings = jsonb_set(readings, '{points,3,1}', to_jsonb(-((readings->'points'->0->>1)::float8))) where id = :id", { replacements: { id: v4.body.id } });
+      await runJobsUntilIdle();
+      expect((await Submission.findByPk(v4.body.id))!.status).toBe("failed");
+      expect(await row()).toMatchObject({ submissionId: v2.body.id, version: 2, status: "marked", mark: 60 });
+      const course = await courseGradebook(q.course.id);
+      expect(course!.rows.find((r) => r.userId === q.students[0].id)!.marks[String(q.session.id)]).toBe(60);
+      // a reviewer chooses version 1 (audited); then takes the choice back
+      const params = { sessionId: String(q.session.id), submissionId: String(v1.body.id) };
+      const chose = payloadOf(await call(reviewAction, request(`/sessions/${q.session.id}/review/${v1.body.id}`, { cookie: staff, form: { intent: "count-this" } }), params));
+      expect(chose.ok).toMatch(/Version 1 now counts/);
+      expect(await row()).toMatchObject({ submissionId: v1.body.id, mark: 100 });
+      expect((await courseGradebook(q.course.id))!.rows.find((r) => r.userId === q.students[0].id)!.marks[String(q.session.id)]).toBe(100);
+      expect(await AuditEntry.count({ where: { action: "submission.chosen-to-count", entityId: String(v1.body.id) } })).toBe(1);
+      const failedParams = { sessionId: String(q.session.id), submissionId: String(v4.body.id) };
+      const refusedChoice = payloadOf(await call(reviewAction, request(`/sessions/${q.session.id}/review/${v4.body.id}`, { cookie: staff, form: { intent: "count-this" } }), failedParams));
+      expect(refusedChoice.error).toMatch(/Only a marked version/);
+      await call(reviewAction, request(`/sessions/${q.session.id}/review/${v1.body.id}`, { cookie: staff, form: { intent: "count-latest" } }), params);
+      expect(await row()).toMatchObject({ submissionId: v2.body.id, mark: 60 });
     } finally {
       await q.course.destroy();
     }

@@ -68,6 +68,8 @@ export class Submission extends Model<InferAttributes<Submission>, InferCreation
   declare markingRuns: CreationOptional<number>;
   declare markingError: CreationOptional<string | null>;
   declare reviewState: CreationOptional<ReviewState>;
+  /** a reviewer chose this version to count in the gradebook (at most one per group and practical) */
+  declare countsChosen: CreationOptional<boolean>;
   declare reviewedById: CreationOptional<number | null>;
   declare createdAt: CreationOptional<Date>;
   declare updatedAt: CreationOptional<Date>;
@@ -132,6 +134,7 @@ Submission.init(
     markingRuns: { type: DataTypes.INTEGER, allowNull: false, defaultValue: 0 },
     markingError: { type: DataTypes.TEXT, allowNull: true },
     reviewState: { type: DataTypes.STRING(20), allowNull: false, defaultValue: "to-check" },
+    countsChosen: { type: DataTypes.BOOLEAN, allowNull: false, defaultValue: false },
     reviewedById: { type: DataTypes.INTEGER, allowNull: true },
     createdAt: DataTypes.DATE,
     updatedAt: DataTypes.DATE,

@@ -25,6 +25,7 @@ import { courseVersion } from "../gradebook/cache.server";
 import { toCsv, type CellValue, type SheetColumn } from "~/lib/exports/table";
 import { unitText } from "~/lib/format";
 import { addTableSheet, CSV_TYPE, downloadName, downloadResponse, newWorkbook, sheetName, workbookBytes, XLSX_TYPE } from "./workbook.server";
+import { countingOrder } from "../gradebook/counting.server";
 
 /** What one practical contributes to an export. */
 interface PracticalPart {
@@ -60,14 +61,14 @@ export interface ExportFile {
   contentType: string;
 }
 
-// The latest version of each group in each practical (as the gradebook counts it), with what was
+// The version that counts of each group in each practical (as the gradebook counts it), with what was
 // read from its file; the file's bytes stay in the database.
 const READINGS = `
 select distinct on (s.session_id, s.group_id) s.id, s.readings, s.excluded, f.original_name
   from submissions s
   left join submission_files f on f.submission_id = s.id
  where s.session_id = any($1::int[])
- order by s.session_id, s.group_id, s.version desc`;
+ order by s.session_id, s.group_id, ${countingOrder("s")}`;
 
 async function readingsOf(sessionIds: number[]): Promise<Map<number, ReadingsOfSubmission>> {
   const out = new Map<number, ReadingsOfSubmission>();

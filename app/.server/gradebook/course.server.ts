@@ -6,6 +6,7 @@ import { getSequelize } from "../db/sequelize.server";
 import { courseTotal, type PracticalForTotal } from "~/lib/gradebook/course-total";
 import { markOf } from "./session.server";
 import { cached, courseVersion } from "./cache.server";
+import { countingOrder } from "./counting.server";
 
 export interface CourseGradebookSession {
   id: number;
@@ -50,13 +51,13 @@ select ls.id, ls.title, ls.date::text as date, ls.status, ls.grade_weight, ls.de
  where ls.course_id = $1 and ls.status <> 'draft'
  order by ls.date, ls.id`;
 
-// Latest version of each group in each practical of the course, as its mark.
+// The version that counts of each group in each practical of the course, as its mark.
 const MARKS = `
 select distinct on (s.session_id, s.group_id) s.session_id, s.group_id, s.status, s.auto_mark, s.override_mark
   from submissions s
   join lab_sessions ls on ls.id = s.session_id
  where ls.course_id = $1 and ls.status <> 'draft'
- order by s.session_id, s.group_id, s.version desc`;
+ order by s.session_id, s.group_id, ${countingOrder("s")}`;
 
 const STUDENTS = `
 select cm.user_id, cm.student_number, u.display_name, u.email, gm.group_id, g.name as group_name

@@ -1,5 +1,5 @@
-// A practical's gradebook: a row per group at a bench, from the group's latest version (the one
-// that counts, as in the review queue). One SQL statement: the page, the API, the exports and the
+// A practical's gradebook: a row per group at a bench, from the version that counts (the one a
+// reviewer chose, else the latest marked one; counting.server.ts). One SQL statement: the page, the API, the exports and the
 // class results all read it, and the course gradebook has to answer hundreds of times a second,
 // so it reads only the few fields it shows out of the JSONB columns.
 import { feedRatio, nuOf } from "~/lib/planning/feed-ratio";
@@ -10,6 +10,7 @@ import { ReactionSystem } from "../db/reaction-systems.server";
 import { Course } from "../db/models.server";
 import { rateConstantAt } from "~/lib/kinetics/arrhenius";
 import { cached, sessionCourseVersion } from "./cache.server";
+import { countingOrder } from "./counting.server";
 
 export interface SessionGradebookRow {
   groupId: number;
@@ -71,7 +72,7 @@ select b.id as bench_id, b.label as bench, b.ca0, b.cb0, b.temperature_c, b.posi
   from benches b
   join groups g on g.id = b.group_id
   left join lateral (
-    select * from submissions x where x.session_id = b.session_id and x.group_id = b.group_id order by x.version desc limit 1
+    select * from submissions x where x.session_id = b.session_id and x.group_id = b.group_id order by ${countingOrder("x")} limit 1
   ) s on true
  where b.session_id = $1
  order by b.position`;

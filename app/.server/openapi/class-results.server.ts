@@ -18,7 +18,7 @@ export const classResultsPart: ApiPart = {
         bench: { type: "string", description: "the bench's label" },
         group: { type: "string" },
         temperatureC: num,
-        submissionId: { type: ["integer", "null"], description: "the group's latest version (the one that counts)" },
+        submissionId: { type: ["integer", "null"], description: "the version that counts: the one a reviewer chose, else the latest marked one, else the latest" },
         status: { type: ["string", "null"], enum: ["queued", "marked", "refused", "failed", null] },
         k: { ...numOrNull, description: "marking k of the latest version, per second with concentrations in mol/L" },
         kStdErr: numOrNull,

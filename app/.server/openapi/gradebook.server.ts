@@ -21,7 +21,7 @@ export const gradebookPart: ApiPart = {
         CB0: { ...num, description: "mol/L in the reactor" },
         feedRatio: { ...num, description: "feed ratio M = CB0/(ν·CA0), ν = b/a (1 is the stoichiometric feed)" },
         temperatureC: num,
-        submissionId: { type: ["integer", "null"], description: "the group's latest version (the one that counts); null: nothing uploaded" },
+        submissionId: { type: ["integer", "null"], description: "the version that counts (the one a reviewer chose, else the latest marked one, else the latest); null: nothing uploaded" },
         version: { type: ["integer", "null"] },
         status: { type: ["string", "null"], enum: ["queued", "marked", "refused", "failed", null] },
         submittedAt: { type: ["string", "null"], format: "date-time" },

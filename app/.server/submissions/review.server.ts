@@ -131,6 +131,18 @@ export async function markAgain(actor: User, submission: Submission) {
   });
 }
 
+/** A reviewer chooses the version that counts in the gradebook (or, with choose false, takes the choice back); audited. */
+export async function chooseCountingVersion(actor: User, submission: Submission, choose: boolean) {
+  if (choose && submission.status !== "marked" && submission.overrideMark === null) problem("Only a marked version (or one with a reviewer's mark) can count.", 409);
+  await getSequelize().transaction(async (transaction) => {
+    const [rows] = await getSequelize().query("select id from submissions where session_id = :sessionId and group_id = :groupId and counts_chosen", { replacements: { sessionId: submission.sessionId, groupId: submission.groupId }, transaction });
+    const before = { chosen: (rows as Array<{ id: number }>).map((r) => r.id) };
+    await Submission.update({ countsChosen: false }, { where: { sessionId: submission.sessionId, groupId: submission.groupId, countsChosen: true }, transaction });
+    if (choose) await Submission.update({ countsChosen: true }, { where: { id: submission.id }, transaction });
+    await recordAudit({ actorId: actor.id, action: choose ? "submission.chosen-to-count" : "submission.choice-to-count-removed", entityType: "submission", entityId: submission.id, before, after: { chosen: choose ? [submission.id] : [] } }, transaction);
+  });
+}
+
 /** Puts a left-out reading back; the mark is recomputed. */
 export async function includeReading(actor: User, submission: Submission, row: number) {
   if (!submission.excluded.some((e) => e.row === row)) problem(`Row ${row} is not left out.`, 409);

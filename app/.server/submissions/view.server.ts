@@ -57,6 +57,8 @@ export interface SubmissionView {
   excluded?: unknown;
   reviewState?: string;
   markingRuns?: number;
+  /** staff only: a reviewer chose this version to count in the gradebook */
+  countsChosen?: boolean;
   /** after release, when the instructor shows it */
   kRefAtT?: number;
   /** the group's own straight line: the k the analysis check compares the reported k with */
@@ -109,6 +111,7 @@ function viewOf(s: Submission, viewer: Viewer, release: { releasedAt: Date | nul
       excluded: s.excluded,
       reviewState: s.reviewState,
       markingRuns: s.markingRuns,
+      countsChosen: s.countsChosen,
     };
   }
   const fit = studentFit(s.fit);

@@ -9,7 +9,7 @@ import { readForm } from "~/.server/body.server";
 import { whileDatabaseUp } from "~/.server/db/unavailable.server";
 import { requireSessionStaff } from "~/.server/submissions/context.server";
 import { loadSubmission } from "~/.server/submissions/access.server";
-import { addComment, excludeReading, includeReading, markAgain, overrideMark, queueStops, queueTabOf, releaseInfo, reviewQueue, setReviewState } from "~/.server/submissions/review.server";
+import { addComment, excludeReading, includeReading, chooseCountingVersion, markAgain, overrideMark, queueStops, queueTabOf, releaseInfo, reviewQueue, setReviewState } from "~/.server/submissions/review.server";
 import { neighbours } from "~/lib/marking/queue";
 import { withFileRows, fileRowsText } from "~/lib/marking/rows";
 import { flagTitle } from "~/lib/marking/flag-titles";
@@ -99,6 +99,8 @@ export async function action({ request, params }: Route.ActionArgs) {
         }
         case "clear-override": await overrideMark(user, submission, null, text("reason") || "override removed"); return { ok: "The automatic mark applies again." };
         case "comment": await addComment(user, submission, text("body")); return { ok: "Comment added." };
+        case "count-this": await chooseCountingVersion(user, submission, true); return { ok: `Version ${submission.version} now counts in the gradebook.` };
+        case "count-latest": await chooseCountingVersion(user, submission, false); return { ok: "The latest marked version counts again." };
         case "mark-again": await markAgain(user, submission); return { ok: submission.status === "marked" ? "Marked again." : "Marked again; it still fails (the reason is above)." };
         case "checked": await setReviewState(user, submission, "checked"); return { ok: "Marked as checked." };
         case "unchecked": await setReviewState(user, submission, "to-check"); return { ok: "Back in the queue." };
@@ -145,6 +147,11 @@ export default function ReviewSubmission({ loaderData, actionData }: Route.Compo
           <strong>Marking failed:</strong> {view.markingError}
           <Form method="post" className="mt-2"><input type="hidden" name="intent" value="mark-again" /><button type="submit" className="text-accent underline">Mark this version again</button></Form>
         </div>
+      ) : null}
+      {view.countsChosen ? (
+        <Form method="post" className="mb-4 text-sm"><input type="hidden" name="intent" value="count-latest" />This version was chosen to count in the gradebook. <button type="submit" className="text-accent underline">Count the latest marked version instead</button></Form>
+      ) : view.status === "marked" || view.parts?.overrideMark != null ? (
+        <Form method="post" className="mb-4 text-sm"><input type="hidden" name="intent" value="count-this" />The gradebook counts the latest marked version unless a reviewer chooses one. <button type="submit" className="text-accent underline">Count this version</button></Form>
       ) : null}
       {view.status === "refused" ? <div role="alert" className="mb-4 rounded border-l-4 border-bad bg-bad-soft px-4 py-3"><strong>Refused:</strong> {view.problems[0]?.message}</div> : null}
 
