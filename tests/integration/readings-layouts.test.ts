@@ -86,6 +86,8 @@ describe("a units row under the header row", () => {
     // the readings are 1000 times the feed as the units row reads it: the engine names the unit
     expect(s.flags.find((f) => f.code === "feed-mismatch")).toMatchObject({ factor: 1000 });
     expect(s.feedback.join(" ")).toMatch(/right concentration unit/);
+    // one cause, one line: the unit explains the flat line and the "no change"
+    expect(s.feedback.join(" ")).not.toMatch(/Take readings for longer|too little change|transform magnifies/);
   });
 });
 
@@ -275,5 +277,36 @@ describe("the version that counts in the gradebook", () => {
     } finally {
       await q.course.destroy();
     }
+  });
+});
+
+describe("feedback: one cause, one line", () => {
+  const truth = () => benchTruth(p, p.benches[0], everyS(120, 3600));
+  test("constant readings (a probe left in air) are named as such, not as a unit-conversion slip", async () => {
+    const t = truth();
+    // the reading stays at the feed value with reading noise of 0.1 mmol/L (invented)
+    const lines = ["t / min,CA (mmol/L)", ...t.t.map((x, i) => `${x / 60},${(20 + (i % 3 === 0 ? 0.1 : i % 3 === 1 ? -0.1 : 0)).toFixed(1)}`)];
+    const s = await marked(0, { bytes: lines.join("\n"), name: "probe-in-air.csv" }, { reportedK: String(t.k) });
+    const text = s.feedback.join(" ");
+    expect(text).toMatch(/Your readings hardly change from first to last \(20\.1 to [\d.]+\): the probe may have been out of the solution/);
+    expect(text).not.toMatch(/unit-conversion factor|right concentration unit|Take readings for longer|too little change/);
+  });
+
+  test("a reported k 60 times the group's own line gets a per-minute hint; the honest readings keep the experiment part", async () => {
+    const t = truth();
+    const lines = ["t / min,CA (mmol/L)", ...t.t.map((x, i) => `${x / 60},${sig4(t.CA[i] * 1000)}`)];
+    const s = await marked(0, { bytes: lines.join("\n"), name: "per-minute.csv" }, { reportedK: String(t.k * 60) });
+    expect(s.feedback.join(" ")).toMatch(/about 60 times the slope of your own straight line: it looks like a k per minute/);
+    expect(s.experimentPart).toBe(60);
+    expect(s.analysisPart).toBe(0);
+  });
+
+  test("a workbook whose formulas were never calculated is refused (422) naming that cause and the fix", async () => {
+    const t = truth();
+    // formulas with no cached values, as a program that writes workbooks without calculating saves them
+    const bytes = await workbook([["t / min", "CA (mmol/L)"], ...t.t.map((x, i) => [{ formula: `${x}/60` } as never, { formula: `${sig4(t.CA[i] * 1000)}*1` } as never])]);
+    const r = await send(0, { bytes, name: "uncalculated.xlsx", type: XLSX });
+    expect(r.status).toBe(422);
+    expect(r.body.errors[0].message).toMatch(/^uncalculated\.xlsx: 62 cell\(s\) hold formulas that were never calculated.*Open it in a spreadsheet, let it recalculate, and save it again/);
   });
 });

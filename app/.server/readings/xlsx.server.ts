@@ -32,13 +32,19 @@ export const FULL_LOAD_CELLS = 50_000;
 
 interface GridRow {
   rowNumber: number;
-  values: Array<number | string | Date | null>;
+  values: Array<number | string | Date | null> & { uncalculated?: number };
+}
+
+/** A formula cell without a cached result (written by a program that does not calculate). */
+function isUncalculated(v: Value): boolean {
+  return !!v && typeof v === "object" && ("formula" in v || "sharedFormula" in v) && (v as ExcelJS.CellFormulaValue).result === undefined;
 }
 
 function rowValues(row: ExcelJS.Row): GridRow["values"] {
   const values: GridRow["values"] = [];
   row.eachCell({ includeEmpty: true }, (cell, col) => {
     values[col - 1] = plain(cell.value);
+    if (isUncalculated(cell.value)) values.uncalculated = (values.uncalculated ?? 0) + 1;
   });
   for (let i = 0; i < values.length; i++) if (values[i] === undefined) values[i] = null;
   return values;
@@ -102,7 +108,9 @@ export async function readXlsx(bytes: Uint8Array, fileName = "the file", options
   if (checked.sheets.length === 0) throw new Refusal(`${fileName} has no sheets.`);
   const sheets = checked.span <= FULL_LOAD_CELLS ? fullSheets(checked.archive, fileName) : streamedSheets(checked, fileName);
   const skipped: string[] = [];
+  let uncalculated = 0;
   for await (const { name, grid } of sheets) {
+    for (const r of grid) uncalculated += r.values.uncalculated ?? 0;
     const table = sheetTable(name, grid, options.start ?? null);
     const shape = describeTable(table);
     if (shape && numericColumns(shape).length >= 2) {
@@ -110,6 +118,11 @@ export async function readXlsx(bytes: Uint8Array, fileName = "the file", options
       return table;
     }
     skipped.push(name);
+  }
+  if (uncalculated > 0) {
+    throw new Refusal(
+      `${fileName}: ${uncalculated} cell(s) hold formulas that were never calculated, so the workbook has no saved values to read (it was written by a program that does not calculate them). Open it in a spreadsheet, let it recalculate, and save it again as .xlsx, or save the readings as CSV.`,
+    );
   }
   throw new Refusal(
     skipped.length === 0

@@ -73,17 +73,57 @@ export interface FeedbackInput {
   expectedForm: string;
   late: boolean;
   excludedRows: readonly number[];
+  /** the readings' values in the time order of the file (for the constant-readings check) */
+  values?: readonly number[];
+}
+
+/** Flags that a unit slip or feed mismatch explains by itself: one cause, one line. */
+const EXPLAINED_BY_UNITS = new Set(["low-conversion", "fit-not-converged", "straight-line-bias", "fits-disagree"]);
+
+/**
+ * Readings that hardly change from first to last (a probe left in air, a reaction never started):
+ * the spread within 2 % of their size (common practice, no source).
+ */
+export function constantReadings(values: readonly number[] | undefined): boolean {
+  if (!values || values.length < 4) return false;
+  const max = Math.max(...values);
+  const min = Math.min(...values);
+  const size = Math.max(Math.abs(max), Math.abs(min));
+  return size === 0 || (max - min) <= 0.02 * size;
+}
+
+/** A reported k that is 60 times (or 1/60 of) the group's own line: minutes instead of seconds. */
+function perMinuteHint(analysis: CheckScore): string | null {
+  const ratio = 1 + analysis.deviationPct / 100;
+  if (!Number.isFinite(ratio) || ratio <= 0) return null;
+  if (Math.abs(ratio / 60 - 1) < 0.1) return "Your reported k is about 60 times the slope of your own straight line: it looks like a k per minute where k per second was asked for. Divide it by 60 (or plot against time in seconds).";
+  if (Math.abs(ratio * 60 - 1) < 0.1) return "Your reported k is about 1/60 of the slope of your own straight line: it looks like your times were in seconds while the k was taken per minute, or the reverse. Multiply it by 60 if your slope was per minute.";
+  return null;
 }
 
 /** Feedback lines for the group: flags first, then what each check found. */
 export function feedbackLines(input: FeedbackInput): string[] {
-  const lines = input.flags.map((f) => flagFeedback(f, input.rowNumbers));
+  const codes = new Set(input.flags.map((f) => f.code as string));
+  const constant = constantReadings(input.values);
+  const unitsExplain = !constant && (codes.has("unit-slip") || codes.has("feed-mismatch"));
+  const lines: string[] = [];
+  if (constant) {
+    const v = input.values!;
+    lines.push(`Your readings hardly change from first to last (${Number(v[0].toPrecision(3))} to ${Number(v[v.length - 1].toPrecision(3))}): the probe may have been out of the solution, or the reaction never started. Check the set-up and repeat the run; no rate constant can come from these readings.`);
+  }
+  for (const f of input.flags) {
+    const code = f.code as string;
+    // constant readings are one cause: no unit slip, no feed mismatch, no "too little change"
+    if (constant && (code === "unit-slip" || code === "feed-mismatch" || EXPLAINED_BY_UNITS.has(code))) continue;
+    if (unitsExplain && EXPLAINED_BY_UNITS.has(code)) continue;
+    lines.push(flagFeedback(f, input.rowNumbers));
+  }
   if (input.reportedMethod && input.reportedMethod in REPORTED_METHODS && input.reportedMethod !== "curve-fit" && input.reportedMethod !== "other" && input.reportedMethod !== input.expectedForm) {
     lines.push(`For your bench's feed the straight line is ${methodText(input.expectedForm)}; you used ${methodText(input.reportedMethod)}, so your k is not the slope this rate law gives.`);
   }
   if (input.reportedK === null) lines.push("You did not report a rate constant of your own, so the analysis check scored nothing.");
   else if (input.analysis.band === "full") lines.push("Your reported k matches the straight line through your own readings.");
-  else lines.push(`Your reported k differs from the straight line through your own readings by ${Math.abs(input.analysis.deviationPct).toFixed(1)} %: check the slope and the plot you used.`);
+  else lines.push(perMinuteHint(input.analysis) ?? `Your reported k differs from the straight line through your own readings by ${Math.abs(input.analysis.deviationPct).toFixed(1)} %: check the slope and the plot you used.`);
   lines.push(
     input.experiment.band === "full"
       ? "Your rate constant agrees with the expected value for your bench's temperature."

@@ -127,6 +127,7 @@ export function markRun(ctx: MarkingContext, run: RunInput): MarkAttempt {
     expectedForm,
     late: run.late,
     excludedRows: run.excludedRows,
+    values: [...checked.request.points].sort((a, b) => a[0] - b[0]).map((p) => p[1]),
   });
   // The group's own method is judged here, not by the engine: a flag so reviewers see it in the queue.
   const method = run.reportedMethod;
