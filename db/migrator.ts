@@ -24,6 +24,7 @@ import * as m0040 from "./migrations/0040-sso-identities";
 import * as m0046 from "./migrations/0046-course-time-zone";
 import * as m0048 from "./migrations/0048-version-that-counts";
 import * as m0050 from "./migrations/0050-lti-launch";
+import * as m0051 from "./migrations/0051-course-invitations";
 
 const migrations: Migration[] = [
   { name: "0001-foundation", ...m0001 },
@@ -42,6 +43,7 @@ const migrations: Migration[] = [
   { name: "0046-course-time-zone", ...m0046 },
   { name: "0048-version-that-counts", ...m0048 },
   { name: "0050-lti-launch", ...m0050 },
+  { name: "0051-course-invitations", ...m0051 },
 ];
 
 export interface Migration {

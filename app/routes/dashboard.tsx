@@ -1,4 +1,4 @@
-import { Link } from "react-router";
+import { data, Form, Link } from "react-router";
 import type { Route } from "./+types/dashboard";
 import { isCourseStaffSomewhere, requireUser } from "~/.server/guards.server";
 import { coursesFor, type CourseSummary } from "~/.server/courses.server";
@@ -10,6 +10,10 @@ import { formatDateTime, formatDay } from "~/lib/dates";
 import { groupLabel, upperFirst } from "~/lib/natural-order";
 import { fixed } from "~/lib/planning/format";
 import { trailFor } from "~/lib/place";
+import { readForm } from "~/.server/body.server";
+import { formId } from "~/.server/ids.server";
+import { answerCourseInvitation, openInvitationsFor, type OpenInvitation } from "~/.server/course-invitations.server";
+import { Button, FormMessage } from "~/components/form";
 
 export const meta: Route.MetaFunction = () => [{ title: "Dashboard · Ratebook" }];
 
@@ -17,7 +21,42 @@ export async function loader({ request }: Route.LoaderArgs) {
   const user = await requireUser(request);
   // Course staff see their practicals open for uploads, kept fresh by polling; students do not.
   const live = (await isCourseStaffSomewhere(user)) ? await liveFigures(user) : null;
-  return { role: user.role, name: user.displayName, courses: await coursesFor(user), live, next: await nextSteps(user) };
+  return { role: user.role, name: user.displayName, courses: await coursesFor(user), live, next: await nextSteps(user), invitations: await openInvitationsFor(user) };
+}
+
+// Answering one's own course invitation (people with an account are invited, never enrolled).
+export async function action({ request }: Route.ActionArgs) {
+  const user = await requireUser(request);
+  const form = await readForm(request);
+  const intent = String(form.get("intent") ?? "");
+  if (intent !== "accept-invitation" && intent !== "decline-invitation") return data({ ok: false, message: `Unknown action "${intent}".` }, { status: 400 });
+  const id = formId(form, "invitationId");
+  if (id === null) return data({ ok: false, message: "The invitation number is missing or malformed." }, { status: 400 });
+  const r = await answerCourseInvitation(user, id, intent === "accept-invitation");
+  if (!r.ok) return data({ ok: false, message: r.message }, { status: r.status });
+  return data({ ok: true, message: r.message });
+}
+
+function Invitations({ invitations }: { invitations: OpenInvitation[] }) {
+  return (
+    <section aria-labelledby="invitations-h" className="mb-8">
+      <h2 id="invitations-h" className="mb-3 text-xl font-bold">Invitations to courses</h2>
+      <ul className="grid gap-3">
+        {invitations.map((i) => (
+          <li key={i.id} className="flex flex-wrap items-center gap-3 rounded border border-rule bg-white p-4">
+            <p className="min-w-0 flex-1">
+              <strong>{i.courseCode}</strong> {i.courseTitle} ({i.term}): as {i.role}{i.inviter ? `, invited by ${i.inviter}` : ""}.
+            </p>
+            <Form method="post" className="flex gap-2">
+              <input type="hidden" name="invitationId" value={i.id} />
+              <Button name="intent" value="accept-invitation">Join {i.courseCode}</Button>
+              <button type="submit" name="intent" value="decline-invitation" className="rounded border border-ink-soft px-4 py-2">Decline</button>
+            </Form>
+          </li>
+        ))}
+      </ul>
+    </section>
+  );
 }
 
 const INTRO: Record<string, string> = {
@@ -99,14 +138,16 @@ function NextSteps({ steps }: { steps: NextStep[] }) {
   );
 }
 
-export default function Dashboard({ loaderData }: Route.ComponentProps) {
-  const { role, name, courses, live, next } = loaderData;
+export default function Dashboard({ loaderData, actionData }: Route.ComponentProps) {
+  const { role, name, courses, live, next, invitations } = loaderData;
   const current = courses.filter((c) => !c.archived);
   const archived = courses.filter((c) => c.archived);
   const mayCreate = role === "course-creator" || role === "admin";
   return (
     <>
       <PageTitle trail={trailFor(null)} sub={INTRO[role]}>Hello, {name}</PageTitle>
+      {actionData ? <FormMessage tone={actionData.ok ? "info" : "error"}>{actionData.message}</FormMessage> : null}
+      {invitations.length ? <Invitations invitations={invitations} /> : null}
       {next.length ? <NextSteps steps={next} /> : null}
       {live ? <LivePracticals initial={live} /> : null}
       <section aria-labelledby="courses-h">

@@ -58,7 +58,7 @@ export const ACCESS: Record<string, RouteAccess> = {
   "routes/auth/password-forgot.tsx": { url: "/password/forgot", get: [200, 200, 200, 200, 200, 200], post: [400, 400, 400, 400, 400, 400], screens: ["signedOut"] },
   "routes/auth/password-reset.tsx": { url: "/password/reset/{badToken}", get: [200, 200, 200, 200, 200, 200], post: [400, 400, 400, 400, 400, 400], screens: ["signedOut"] },
 
-  "routes/dashboard.tsx": { url: "/dashboard", get: PAGE_ALL, post: NO_ACTION_PAGE, screens: ["admin", "instructor", "demonstrator", "student"] },
+  "routes/dashboard.tsx": { url: "/dashboard", get: PAGE_ALL, post: [302, 400, 400, 400, 400, 400], screens: ["admin", "instructor", "demonstrator", "student"] },
   "routes/account.tsx": { url: "/account", get: PAGE_ALL, post: [302, 400, 400, 400, 400, 400], screens: ["instructor", "student"] },
   "routes/courses/new.tsx": { url: "/courses/new", get: [302, 200, 200, 403, 403, 403], post: [302, 400, 400, 403, 403, 403], screens: ["instructor", "student"] },
   "routes/courses/course.tsx": {

@@ -10,6 +10,7 @@ import { getSequelize } from "~/.server/db/sequelize.server";
 import "~/.server/db/models.server";
 import "~/.server/db/api-token.server";
 import "~/.server/db/class-results.server";
+import "~/.server/db/course-invitations.server";
 import "~/.server/db/groups.server";
 import "~/.server/db/lab-sessions.server";
 import "~/.server/db/reaction-systems.server";

@@ -112,7 +112,9 @@ describe("roster import", () => {
     const saved = payloadOf(await confirm(preview.payload));
     expect(saved.message).toContain("1 updated, 1 unchanged");
     const robin = await User.findOne({ where: { email: "robin.ash@roster.ratebook.invalid" } });
-    expect(robin!.displayName).toBe("Robin Ash-Vale (invented)");
+    // an existing account keeps its own name (issue 15): the roster only changes the course's data
+    expect(preview.rows[1].notes.join(" ")).toContain("keeps the account's name Robin Ash (invented)");
+    expect(robin!.displayName).toBe("Robin Ash (invented)");
     const gm = await GroupMember.findOne({ where: { userId: robin!.id, courseId: course.id }, include: [{ model: Group, as: "group" }] });
     expect(gm!.group!.name).toBe("Lab B");
   });

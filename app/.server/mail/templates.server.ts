@@ -29,6 +29,17 @@ const TEMPLATES = {
         `If you did not expect this, ignore this message.\n`,
     }),
   },
+  "course-invitation": {
+    // an existing account: nothing changes until its owner accepts on their dashboard
+    data: z.object({ name, inviter: name, courseCode: name, courseTitle: name, role: name }),
+    render: (d: { name: string; inviter: string; courseCode: string; courseTitle: string; role: string }) => ({
+      subject: `Invitation to join ${inline(d.courseCode)} on Ratebook`,
+      text:
+        `Hello ${inline(d.name)},\n\n${inline(d.inviter)} invites you to join ${inline(d.courseCode)} ${inline(d.courseTitle)} as ${inline(d.role)}.\n` +
+        `Sign in with your usual password and accept or decline on your dashboard:\n\n${config.appUrl}/dashboard\n\n` +
+        `Nothing changes in your account until you accept.\n`,
+    }),
+  },
   "password-reset": {
     data: z.object({ name, token: z.string().min(20).max(200) }),
     render: (d: { name: string; token: string }) => ({

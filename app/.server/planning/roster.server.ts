@@ -13,6 +13,8 @@ import { emailProblem, normaliseEmail, NOT_AN_ADDRESS } from "~/lib/email-addres
 import { issueToken } from "../tokens.server";
 import { recordAudit } from "../audit.server";
 import { queueMail } from "../mail/outbox.server";
+import { CourseInvitation } from "../db/course-invitations.server";
+import { inviteExistingPerson } from "../course-invitations.server";
 
 export const ROSTER_MAX_BYTES = 2 * 1024 * 1024;
 
@@ -139,6 +141,7 @@ export async function previewRoster(courseId: number, rows: RosterRow[]): Promis
   const membershipByNumber = new Map(memberships.filter((m) => m.studentNumber).map((m) => [m.studentNumber!, m]));
   const groupMembers = await GroupMember.findAll({ where: { courseId }, include: [{ model: Group, as: "group" }] });
   const groupByUser = new Map(groupMembers.map((g) => [g.userId, g.group!.name]));
+  const invitedIds = new Set((await CourseInvitation.findAll({ where: { courseId }, attributes: ["userId"] })).map((i) => i.userId));
 
   const seenNumber = new Map<string, number>();
   const seenEmail = new Map<string, number>();
@@ -161,13 +164,19 @@ export async function previewRoster(courseId: number, rows: RosterRow[]): Promis
     const holder = r.studentNumber ? membershipByNumber.get(r.studentNumber) : undefined;
     if (holder && holder.userId !== user?.id) notes.push(`student ID ${r.studentNumber} belongs to another student of this course`);
     if (notes.length) return { ...r, status: "bad" as const, notes };
-    if (!membership) return { ...r, status: "new" as const, notes: user ? ["has a Ratebook account; joins this course"] : ["gets an invitation e-mail"] };
+    // An existing account keeps its own name (the file cannot rename anybody, the admin
+    // included) and is invited; it joins only when its owner accepts.
+    const keepsName = user && user.displayName !== r.name ? [`keeps the account's name ${user.displayName}`] : [];
+    if (!membership) {
+      if (!user) return { ...r, status: "new" as const, notes: ["gets an invitation e-mail"] };
+      const already = invitedIds.has(user.id) ? "; already invited, the invitation is sent again" : "";
+      return { ...r, status: "new" as const, notes: [`has a Ratebook account: invited to join, joins when they accept${already}`, ...keepsName] };
+    }
     const changes: string[] = [];
     if (membership.studentNumber !== r.studentNumber) changes.push(`student ID ${membership.studentNumber ?? "none"} → ${r.studentNumber}`);
-    if (user!.displayName !== r.name) changes.push(`name ${user!.displayName} → ${r.name}`);
     const oldGroup = groupByUser.get(user!.id) ?? "";
     if (r.group && r.group !== oldGroup) changes.push(`group ${oldGroup || "none"} → ${r.group}`);
-    return { ...r, status: changes.length ? ("updated" as const) : ("unchanged" as const), notes: changes };
+    return { ...r, status: changes.length ? ("updated" as const) : ("unchanged" as const), notes: [...changes, ...keepsName] };
   });
 }
 
@@ -176,6 +185,8 @@ export interface ImportSummary {
   updated: number;
   unchanged: number;
   invited: number;
+  /** existing accounts invited to the course (they join when they accept) */
+  invitedExisting: number;
   groupsCreated: number;
 }
 
@@ -188,7 +199,7 @@ export async function importRoster(actor: User, courseId: number, rows: RosterRo
   const bad = preview.filter((r) => r.status === "bad");
   if (bad.length) return { ok: false, preview, message: `${bad.length} row(s) have problems; fix them in the file and upload it again.` };
   const course = await Course.findByPk(courseId);
-  const summary: ImportSummary = { added: 0, updated: 0, unchanged: 0, invited: 0, groupsCreated: 0 };
+  const summary: ImportSummary = { added: 0, updated: 0, unchanged: 0, invited: 0, invitedExisting: 0, groupsCreated: 0 };
   await sequelize.transaction(async (transaction) => {
     const groups = new Map((await Group.findAll({ where: { courseId }, transaction })).map((g) => [g.name, g]));
     for (const r of preview) {
@@ -197,8 +208,12 @@ export async function importRoster(actor: User, courseId: number, rows: RosterRo
         continue;
       }
       let user = await User.findOne({ where: { email: r.email }, transaction });
+      if (user && !(await CourseMembership.count({ where: { courseId, userId: user.id }, transaction }))) {
+        await inviteExistingPerson(actor, course!, user, { role: "student", studentNumber: r.studentNumber, groupName: r.group }, transaction);
+        summary.invitedExisting++;
+        continue;
+      }
       if (!user) user = await User.create({ email: r.email, displayName: r.name, role: "member", passwordHash: null }, { transaction });
-      else if (user.displayName !== r.name) await user.update({ displayName: r.name }, { transaction });
       const [membership, created] = await CourseMembership.findOrCreate({
         where: { courseId, userId: user.id },
         defaults: { courseId, userId: user.id, role: "student", studentNumber: r.studentNumber },

@@ -64,7 +64,7 @@ export async function action({ request, params }: Route.ActionArgs) {
     const r = await importRoster(user, course.id, rows.map((x) => ({ row: Number(x.row), studentNumber: String(x.studentNumber ?? ""), name: String(x.name ?? ""), email: String(x.email ?? ""), group: String(x.group ?? "") })));
     if (!r.ok) return data<ActionData>({ kind: "error", message: `${r.message} Nothing was saved.`, rows: r.preview }, { status: 400 });
     const s = r.value;
-    return data<ActionData>({ kind: "saved", message: `Saved: ${s.added} added, ${s.updated} updated, ${s.unchanged} unchanged; ${s.groupsCreated} new group(s); ${s.invited} invitation(s) queued.` });
+    return data<ActionData>({ kind: "saved", message: `Saved: ${s.added} added, ${s.updated} updated, ${s.unchanged} unchanged; ${s.groupsCreated} new group(s); ${s.invited} invitation(s) queued${s.invitedExisting ? `; ${s.invitedExisting} person(s) with an account invited to join (they keep their names and join when they accept)` : ""}.` });
   }
   if (intent === "add-demonstrator") {
     const email = String(form.get("email") ?? "");
