@@ -50,6 +50,33 @@ const bearerCredential: Credential = async (request) => {
 
 const CREDENTIALS: Credential[] = [bearerCredential, sessionCredential];
 
+// Who is changing something in this request: the person is looked up per request (a fresh User
+// instance each time), so the policy below can tell a write from a read without every route
+// saying so.
+const READING_METHODS = new Set(["GET", "HEAD", "OPTIONS"]);
+const writers = new WeakSet<User>();
+
+/** Whether this person's request is a write (any method but GET, HEAD, OPTIONS). */
+export function isWriting(user: User): boolean {
+  return writers.has(user);
+}
+
+export const ARCHIVED_READ_ONLY = "This course is archived, so it is read-only: nothing was changed. An instructor can take it out of the archive on the course page.";
+
+/**
+ * Archived means read-only everywhere: the one check, called by every policy function that
+ * resolves a course (requireCourseRole, the group and practical checks of submissions). A read
+ * passes; a write to an archived course is 409 with the reason. `whileArchived` is for the one
+ * write an archived course takes: taking it out of the archive.
+ */
+export async function refuseWriteIfArchived(user: User, courseId: number, api: boolean, options: { whileArchived?: boolean } = {}): Promise<void> {
+  if (options.whileArchived || !isWriting(user) || !Number.isInteger(courseId)) return;
+  const course = await Course.findByPk(courseId, { attributes: ["id", "archivedAt"] });
+  if (!course?.archivedAt) return;
+  if (api) throw Response.json({ error: ARCHIVED_READ_ONLY }, { status: 409 });
+  throw data({ message: ARCHIVED_READ_ONLY }, { status: 409 });
+}
+
 // The layout's loader and the page's loader get the same Request: look the person up once.
 const principalsByRequest = new WeakMap<Request, Promise<Principal | null>>();
 
@@ -60,7 +87,10 @@ export function currentPrincipal(request: Request): Promise<Principal | null> {
       // Read on every request, so an ended session, a changed role or a removed account takes effect at once.
       for (const credential of CREDENTIALS) {
         const found = await credential(request);
-        if (found) return found;
+        if (found) {
+          if (!READING_METHODS.has(request.method.toUpperCase())) writers.add(found.user);
+          return found;
+        }
       }
       return null;
     })();
@@ -125,8 +155,12 @@ export async function requireCourseRole(
   courseId: number,
   roles: readonly CourseRole[],
   api = false,
+  options: { whileArchived?: boolean } = {},
 ): Promise<CourseRole> {
-  if (user.role === "admin") return "instructor";
+  if (user.role === "admin") {
+    await refuseWriteIfArchived(user, courseId, api, options);
+    return "instructor";
+  }
   const membership = Number.isInteger(courseId)
     ? await CourseMembership.findOne({ where: { courseId, userId: user.id } })
     : null;
@@ -134,6 +168,7 @@ export async function requireCourseRole(
   if (!roles.includes(membership.role)) {
     deny(403, `This needs the course role ${roles.join(" or ")}; yours is ${membership.role}.`, api);
   }
+  await refuseWriteIfArchived(user, courseId, api, options);
   return membership.role;
 }
 

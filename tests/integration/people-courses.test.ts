@@ -44,8 +44,8 @@ describe("people and courses", () => {
     expect((await Course.findByPk(Number(id)))!.archivedAt).not.toBeNull();
     expect(await AuditEntry.count({ where: { action: "course.archived", entityId: id } })).toBe(1);
     const refused = await post(cookie, id, { intent: "invite", email: "late@demo.ratebook.invalid", displayName: "Late (test)", role: "student" });
-    expect(statusOf(refused)).toBe(400);
-    expect(payloadOf(refused).errors.form).toMatch(/archived/);
+    expect(statusOf(refused)).toBe(409);
+    expect(payloadOf(refused).message).toMatch(/archived/);
     const dash = payloadOf(await call(dashboardLoader, request("/dashboard", { cookie })));
     expect(dash.courses.find((c: { id: number }) => String(c.id) === id).archived).toBe(true);
     expect(statusOf(await post(cookie, id, { intent: "unarchive" }))).toBe(200);

@@ -1,5 +1,6 @@
 // Who may read a gradebook: the course's instructors and demonstrators (and admins). Students
 // never: 403 for a course they are in, as for any staff-only page.
+import { refuseWriteIfArchived } from "../guards.server";
 import { data } from "react-router";
 import { QueryTypes } from "sequelize";
 import { getSequelize } from "../db/sequelize.server";
@@ -47,6 +48,7 @@ async function requireGradebookStaff(user: User, kind: keyof typeof ACCESS, id: 
     if (!row.role) deny(403, "You are not a member of this course.", api);
     if (row.role !== "instructor" && row.role !== "demonstrator") deny(403, "Gradebooks are for the course's instructors and demonstrators.", api);
   }
+  if (row.archived) await refuseWriteIfArchived(user, row.course_id, api);
   return { courseId: row.course_id, version: row.version, instructor: user.role === "admin" || row.role === "instructor", archived: row.archived };
 }
 

@@ -4,6 +4,7 @@ import { data } from "react-router";
 import { Op } from "sequelize";
 import type { User } from "../db/models.server";
 import { CourseMembership } from "../db/models.server";
+import { refuseWriteIfArchived } from "../guards.server";
 import { Group, GroupMember } from "../db/groups.server";
 import { Bench, LabSession } from "../db/lab-sessions.server";
 import { ReactionSystem } from "../db/reaction-systems.server";
@@ -20,12 +21,18 @@ function deny(status: 403 | 404, message: string, api: boolean): never {
 
 /** Staff of the group's course see every group; a student sees only a group they are in (404 otherwise: its existence must not leak). */
 export async function viewerOfGroup(user: User, group: Group, api: boolean): Promise<Viewer> {
-  if (user.role === "admin") return "staff";
+  if (user.role === "admin") return refuseWriteIfArchived(user, group.courseId, api).then(() => "staff" as const);
   const membership = await CourseMembership.findOne({ where: { courseId: group.courseId, userId: user.id } });
-  if (membership && (membership.role === "instructor" || membership.role === "demonstrator")) return "staff";
+  if (membership && (membership.role === "instructor" || membership.role === "demonstrator")) {
+    await refuseWriteIfArchived(user, group.courseId, api);
+    return "staff";
+  }
   // Group rights hold only while the person is still on the course (a stale group row grants nothing).
   const inGroup = membership ? await GroupMember.findOne({ where: { groupId: group.id, userId: user.id } }) : null;
-  if (inGroup) return "member";
+  if (inGroup) {
+    await refuseWriteIfArchived(user, group.courseId, api);
+    return "member";
+  }
   if (membership) deny(404, "There is no such group among yours.", api);
   deny(403, "You are not a member of this course.", api);
 }
@@ -40,10 +47,12 @@ export async function requireGroup(user: User, groupId: number, api: boolean): P
 export async function requireSessionStaff(user: User, sessionId: number, api: boolean, roles: readonly string[] = ["instructor", "demonstrator"]): Promise<LabSession> {
   const session = await LabSession.findByPk(sessionId);
   if (!session) deny(404, "There is no such practical.", api);
-  if (user.role === "admin") return session;
-  const membership = await CourseMembership.findOne({ where: { courseId: session.courseId, userId: user.id } });
-  if (!membership) deny(403, "You are not a member of this course.", api);
-  if (!roles.includes(membership.role)) deny(403, `This needs the course role ${roles.join(" or ")}; yours is ${membership.role}.`, api);
+  if (user.role !== "admin") {
+    const membership = await CourseMembership.findOne({ where: { courseId: session.courseId, userId: user.id } });
+    if (!membership) deny(403, "You are not a member of this course.", api);
+    if (!roles.includes(membership.role)) deny(403, `This needs the course role ${roles.join(" or ")}; yours is ${membership.role}.`, api);
+  }
+  await refuseWriteIfArchived(user, session.courseId, api);
   return session;
 }
 

@@ -63,9 +63,10 @@ type ActionResult = { intent: string; errors: FieldErrors; values: Record<string
 export async function action({ request, params }: Route.ActionArgs) {
   const user = await requireUser(request);
   const course = await loadCourse(params.courseId);
-  await requireCourseRole(user, course.id, ["instructor"]);
   const form = await readForm(request);
   const intent = String(form.get("intent") ?? "");
+  // taking a course out of the archive is the one change an archived course accepts (the policy refuses the rest)
+  await requireCourseRole(user, course.id, ["instructor"], false, { whileArchived: intent === "unarchive" || intent === "archive" });
   const reply = (r: Omit<ActionResult, "intent">, status = 200) => data<ActionResult>({ intent, ...r }, { status });
   const refuse = (message: string, status = 400) => reply({ errors: { form: message }, values: {}, notice: null }, status);
   if (intent === "unarchive" || intent === "archive") {
@@ -73,7 +74,6 @@ export async function action({ request, params }: Route.ActionArgs) {
     if (!result.ok) return reply({ errors: result.errors, values: {}, notice: null }, 400);
     return reply({ errors: {}, values: {}, notice: intent === "archive" ? "The course is archived: it is read-only until you take it out of the archive." : "The course is out of the archive." });
   }
-  if (course.archivedAt) return refuse("This course is archived; take it out of the archive before changing it.");
   if (intent === "sso-required" || intent === "sso-optional") {
     const required = intent === "sso-required";
     if (required && !ssoConfig()) return refuse("Signing in with an institution is not set up on this Ratebook (OIDC_ISSUER is not set), so it cannot be required.");
