@@ -178,11 +178,11 @@ export const NO_COURSE = "There is no course at this address.";
  * A course page's check in one step: the signed-in person, the course from the path (404 when
  * there is none) and their role in it (403 unless one of `roles`; admins act as instructors).
  */
-export async function requireCourseFromPath(request: Request, rawCourseId: string | undefined, roles: readonly CourseRole[]) {
+export async function requireCourseFromPath(request: Request, rawCourseId: string | undefined, roles: readonly CourseRole[], options: { whileArchived?: boolean } = {}) {
   const user = await requireUser(request);
   const course = await Course.findByPk(pathId(rawCourseId, NO_COURSE));
   if (!course) throw data({ message: NO_COURSE }, { status: 404 });
-  const role = await requireCourseRole(user, course.id, roles);
+  const role = await requireCourseRole(user, course.id, roles, false, options);
   return { user, course, role };
 }
 

@@ -255,13 +255,13 @@ export interface SessionAccess {
 }
 
 /** The session if the caller is a member of its course (404 when it does not exist, 403 for outsiders). */
-export async function sessionAccess(user: User, sessionId: number, api = false): Promise<SessionAccess> {
+export async function sessionAccess(user: User, sessionId: number, api = false, options: { whileArchived?: boolean } = {}): Promise<SessionAccess> {
   const session = await LabSession.findByPk(sessionId, { include: [{ model: ReactionSystem, as: "reactionSystem" }, { model: Course, as: "course" }] });
   if (!session) {
     if (api) throw Response.json({ error: "There is no practical with this id." }, { status: 404 });
     throw data({ message: "There is no practical at this address." }, { status: 404 });
   }
-  const role = await requireCourseRole(user, session.courseId, ["instructor", "demonstrator", "student"], api);
+  const role = await requireCourseRole(user, session.courseId, ["instructor", "demonstrator", "student"], api, options);
   const membership = await GroupMember.findOne({ where: { userId: user.id, courseId: session.courseId } });
   return {
     session,

@@ -14,7 +14,8 @@ export const meta: Route.MetaFunction = ({ data }) => [{ title: `Copy ${data?.co
 const MAY_CREATE = ["admin", "course-creator"];
 
 async function copier(request: Request, rawId: string | undefined) {
-  const found = await requireCourseFromPath(request, rawId, ["instructor"]);
+  // copying reads this course and writes a new one, so an archived course may be copied
+  const found = await requireCourseFromPath(request, rawId, ["instructor"], { whileArchived: true });
   if (!MAY_CREATE.includes(found.user.role)) throw data({ message: "Copying a course makes a new course: your account cannot create courses. Ask an administrator." }, { status: 403 });
   return found;
 }

@@ -16,7 +16,8 @@ export const meta: Route.MetaFunction = ({ data }) => [{ title: `Copy ${data?.pr
 
 async function instructorAccess(request: Request, rawId: string | undefined) {
   const user = await requireUser(request);
-  const access = await sessionAccess(user, pathId(rawId));
+  // the source is only read (an archived course's practical may be copied); reuse.server refuses archived targets
+  const access = await sessionAccess(user, pathId(rawId), false, { whileArchived: true });
   if (access.role !== "instructor") throw data({ message: "Only the course's instructors copy a practical." }, { status: 403 });
   return { user, access };
 }
