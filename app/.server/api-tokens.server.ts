@@ -2,13 +2,23 @@
 // their SHA-256, sent as `Authorization: Bearer <token>` on the JSON API and the downloads.
 // A revoked or expired token is refused at once: every request looks its row up.
 import crypto from "node:crypto";
-import { QueryTypes } from "sequelize";
+import { Op, QueryTypes, type Transaction } from "sequelize";
 import { sequelize, User } from "./db/models.server";
 import { ApiToken } from "./db/api-token.server";
 import { recordAudit } from "./audit.server";
 
 export const TOKEN_PREFIX = "rbk_";
 export const MAX_TOKEN_DAYS = 366;
+/** live (not revoked, not expired) tokens a person may hold at once */
+export const MAX_LIVE_TOKENS = 10;
+export const TOKEN_CAP_MESSAGE = `You already have ${MAX_LIVE_TOKENS} live API tokens, the most one person may hold. Revoke one you no longer use on your account page, then make the new one.`;
+
+/** The person holds the most live tokens allowed; nothing was made. */
+export class TokenCapError extends Error {
+  constructor() {
+    super(TOKEN_CAP_MESSAGE);
+  }
+}
 const NAME_MAX = 80;
 /** last_used_at is written at most this often, so reads stay reads. */
 const TOUCH_EVERY_MS = 5 * 60 * 1000;
@@ -53,6 +63,10 @@ export async function createApiToken(user: Pick<User, "id">, name: string, expir
   const token = TOKEN_PREFIX + crypto.randomBytes(32).toString("base64url");
   const expiresAt = expiresInDays ? new Date(now.getTime() + expiresInDays * 86_400_000) : null;
   const row = await sequelize.transaction(async (transaction) => {
+    // the person's row is locked so two requests at once cannot both pass the cap
+    await User.findByPk(user.id, { transaction, lock: transaction.LOCK.UPDATE, attributes: ["id"] });
+    const live = await ApiToken.count({ where: { userId: user.id, revokedAt: null, [Op.or]: [{ expiresAt: null }, { expiresAt: { [Op.gt]: now } }] }, transaction });
+    if (live >= MAX_LIVE_TOKENS) throw new TokenCapError();
     const created = await ApiToken.create(
       { userId: user.id, name, tokenHash: digest(token), tokenStart: token.slice(0, 10), expiresAt, createdAt: now },
       { transaction },
@@ -100,6 +114,18 @@ export async function revokeApiToken(userId: number, tokenId: number, now = new 
     }
     return true;
   });
+}
+
+export type TokenEndReason = "password-changed" | "password-reset" | "role-lowered";
+
+/**
+ * Revokes every live token of a person, in the caller's transaction: whoever knew the old
+ * password, or the powers the account had, may have made them. Audited once with the count.
+ */
+export async function revokeAllApiTokensOf(userId: number, reason: TokenEndReason, transaction: Transaction, now = new Date()): Promise<number> {
+  const [count] = await ApiToken.update({ revokedAt: now }, { where: { userId, revokedAt: null }, transaction });
+  if (count) await recordAudit({ actorId: null, action: "api-token.revoked-all", entityType: "user", entityId: userId, after: { reason, count } }, transaction);
+  return count;
 }
 
 /** The Bearer token of a request: undefined without an Authorization: Bearer header, "" when malformed. */

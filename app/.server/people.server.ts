@@ -10,6 +10,7 @@ import { enqueue } from "./jobs/queue.server";
 import { emailProblem, normaliseEmail } from "./auth.server";
 import { endSessionsOf } from "./session.server";
 import { liftSignInLock } from "./throttle.server";
+import { revokeAllApiTokensOf } from "./api-tokens.server";
 
 export type FieldErrors = Partial<Record<string, string>>;
 export type Outcome<T = undefined> = { ok: true; value: T } | { ok: false; errors: FieldErrors };
@@ -131,6 +132,7 @@ export async function resetPassword(rawToken: string, input: { password: unknown
     // Whoever knew the old password is signed out everywhere, and the lock the sign-in page
     // recommended a reset for no longer stands in the way of the new password.
     await endSessionsOf(user.id, "password-reset", { transaction });
+    await revokeAllApiTokensOf(user.id, "password-reset", transaction);
     await recordAudit({ actorId: user.id, action: "user.password-reset", entityType: "user", entityId: user.id }, transaction);
   });
   // the lock the sign-in page recommended a reset for no longer stands in the way of the new password
@@ -152,7 +154,11 @@ export async function changeUserRole(actor: User, userId: number, rawRole: unkno
     const before = { role: user.role };
     await user.update({ role }, { transaction });
     // Taking powers away signs the person out everywhere; a promotion needs no new sign-in.
-    if (ROLE_RANK[role] < ROLE_RANK[before.role]) await endSessionsOf(user.id, "role-changed", { transaction });
+    // Its API tokens end too (they were made with the powers the account had).
+    if (ROLE_RANK[role] < ROLE_RANK[before.role]) {
+      await endSessionsOf(user.id, "role-changed", { transaction });
+      await revokeAllApiTokensOf(user.id, "role-lowered", transaction);
+    }
     await recordAudit({ actorId: actor.id, action: "user.role-changed", entityType: "user", entityId: user.id, before, after: { role } }, transaction);
     return { ok: true as const, value: undefined };
   });
@@ -203,6 +209,7 @@ export async function changeOwnPassword(
   await sequelize.transaction(async (transaction) => {
     await user.update({ passwordHash }, { transaction });
     await endSessionsOf(user.id, "password-changed", { exceptId: keepSessionId, transaction });
+    await revokeAllApiTokensOf(user.id, "password-changed", transaction);
     await recordAudit({ actorId: user.id, action: "user.password-changed", entityType: "user", entityId: user.id }, transaction);
   });
   return { ok: true, value: undefined };

@@ -8,7 +8,7 @@ import { formId } from "~/.server/ids.server";
 import { endOneSession, endSessionsOf, liveSessionsOf } from "~/.server/session.server";
 import { browserName } from "~/lib/user-agent";
 import { Button, Field, FormMessage } from "~/components/form";
-import { apiTokensOf, checkTokenRequest, createApiToken, revokeApiToken } from "~/.server/api-tokens.server";
+import { apiTokensOf, checkTokenRequest, createApiToken, revokeApiToken, TokenCapError } from "~/.server/api-tokens.server";
 import { ApiTokensSection } from "~/components/api-tokens-section";
 import { PageTitle } from "~/components/page";
 import { trailFor } from "~/lib/place";
@@ -65,7 +65,13 @@ export async function action({ request }: Route.ActionArgs) {
   if (intent === "create-token") {
     const checked = checkTokenRequest({ name: form.get("tokenName") ?? "", expiresInDays: form.get("expiresInDays") ?? "" });
     if (!checked.ok) return reply({ errors: Object.fromEntries(checked.errors.map((e) => [e.path, e.message])) }, 400);
-    const made = await createApiToken(user, checked.name, checked.expiresInDays);
+    let made;
+    try {
+      made = await createApiToken(user, checked.name, checked.expiresInDays);
+    } catch (error) {
+      if (error instanceof TokenCapError) return reply({ errors: { tokenName: error.message } }, 409);
+      throw error;
+    }
     return reply({ errors: {}, newToken: { name: made.name, token: made.token, expires: made.expiresAt ? when(made.expiresAt) : null } });
   }
   if (intent === "revoke-token") {

@@ -1,6 +1,6 @@
 import type { Route } from "./+types/tokens";
 import { currentPrincipal, requireUser } from "~/.server/guards.server";
-import { checkTokenRequest, createApiToken } from "~/.server/api-tokens.server";
+import { checkTokenRequest, createApiToken, TokenCapError } from "~/.server/api-tokens.server";
 import { readJson } from "~/.server/body.server";
 import { requireSameOriginWrite } from "~/.server/same-origin.server";
 import { requireWithinLimit } from "~/.server/throttle.server";
@@ -18,7 +18,13 @@ export async function action({ request }: Route.ActionArgs) {
   const checked = checkTokenRequest(await readJson(request, { limit: 4096 }));
   if (!checked.ok) return Response.json({ errors: checked.errors }, { status: 400 });
   await requireWithinLimit("tokenCreate", `user:${user.id}`);
-  const made = await createApiToken(user, checked.name, checked.expiresInDays);
+  let made;
+  try {
+    made = await createApiToken(user, checked.name, checked.expiresInDays);
+  } catch (error) {
+    if (error instanceof TokenCapError) return Response.json({ errors: [{ path: "", message: error.message }] }, { status: 409 });
+    throw error;
+  }
   return Response.json({ id: made.id, token: made.token, name: made.name, expiresAt: made.expiresAt }, { status: 201, headers: { "Cache-Control": "no-store" } });
 }
 
