@@ -45,6 +45,9 @@ const NOT_COURSE_WRITES = new Set([
   "courses/new.tsx", "dashboard.tsx",
   // copies read the archived course and write into another one (reuse.server.ts refuses archived targets)
   "courses/copy.tsx", "sessions/copy.tsx",
+  // platform registrations are the admin's; a launch into an archived course is refused by the
+  // launch itself (its own page, "course-archived", in app/.server/lti/launch.server.ts)
+  "admin/lti.tsx", "lti/launch.ts", "lti/login.ts",
 ]);
 
 beforeAll(async () => {
