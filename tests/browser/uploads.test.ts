@@ -1,5 +1,5 @@
-// The whole round in Debian's chromium: the demo student uploads a CSV with a decimal comma, maps
-// its columns, sees the live preview and submits; the demo instructor reviews, overrides one mark
+// The whole round in Debian's chromium: a file the preview refuses cannot be sent; the demo student
+// uploads a CSV with a decimal comma, maps its columns, sees the live preview and submits; the demo instructor reviews, overrides one mark
 // and releases; the student then reads the feedback page. Screenshots at 1280 and 390 px wide.
 import fs from "node:fs";
 import path from "node:path";
@@ -13,6 +13,7 @@ import { Bench, LabSession } from "~/.server/db/lab-sessions.server";
 import { ReactionSystem } from "~/.server/db/reaction-systems.server";
 import { rateConstantAt } from "~/lib/kinetics";
 import { simulateRun } from "~/lib/marking/simulate";
+import { Submission } from "~/.server/db/submissions.server";
 
 const shots = path.resolve(import.meta.dirname, "..", "..", "test-results");
 let server: AppServer;
@@ -23,6 +24,9 @@ let fx: SubmissionFixture;
 // the way a spreadsheet with a decimal comma saves them: semicolons, a sample-number column
 // first, units in the header, a notes column last.
 let CSV = "";
+// The same run written as the conversion of A in percent under a concentration header: the
+// preview refuses it (range checks at upload), so the page must not send it.
+let PERCENT_CSV = "";
 let reportedK = "";
 let method = "";
 const pageErrors: string[] = [];
@@ -34,6 +38,8 @@ async function inventedReadings(groupId: number) {
   const run = simulateRun({ reaction: { a: rs.coeffA, b: rs.coeffB, orderA: rs.orderA, orderB: rs.orderB }, feed: { CA0: bench.CA0, CB0: bench.CB0 }, k, n: 12, seed: 42 });
   const comma = (x: number) => String(x).replace(".", ",");
   CSV = ["Probe;t / min;c(A) / mmol/L;Bemerkung", ...run.rows.map(([t, c], i) => `${i + 1};${comma(t)};${comma(c)};${i === 5 ? "trüb" : ""}`)].join("\n") + "\n";
+  const percent = (cMmol: number) => (100 * (1 - cMmol / (bench.CA0 * 1000))).toFixed(2);
+  PERCENT_CSV = ["t / min,CA (mol/L)", ...run.rows.map(([t, c]) => `${t},${percent(c)}`)].join("\n") + "\n";
   reportedK = String(run.reportedK);
   method = run.reportedMethod;
 }
@@ -66,6 +72,31 @@ async function noSidewaysScroll(page: Page) {
   const [scroll, client] = await page.evaluate(() => [document.documentElement.scrollWidth, document.documentElement.clientWidth]);
   expect(scroll, `page is ${scroll} px wide in a ${client} px window`).toBeLessThanOrEqual(client);
 }
+
+describe("a file the preview refuses", () => {
+  test("is not sent: the preview says why, the button stays disabled and nothing is stored", async () => {
+    const before = await Submission.count({ where: { groupId: fx.groupId } });
+    const page = await signedIn("student@demo.ratebook.invalid", "demo-student-pass", `/groups/${fx.groupId}/submissions`);
+    const posts: string[] = [];
+    page.on("request", (r) => { if (r.method() === "POST" && !r.url().includes("/preview")) posts.push(r.url()); });
+    await page.locator("#f-file").setInputFiles({ name: "conversion.csv", mimeType: "text/csv", buffer: Buffer.from(PERCENT_CSV, "utf8") });
+    const alert = page.getByRole("alert").filter({ hasText: /conversion of A in percent/ });
+    await expect.poll(() => alert.count(), { timeout: 10_000 }).toBe(1);
+    expect(await alert.textContent()).toMatch(/rise from -?[\d.]+ \(row 2\).*Send CA = CA0·\(1 − X\/100\)/);
+    await expect.poll(() => page.getByText("This file cannot be sent as it is: put right what the preview says, or choose another file.").count(), { timeout: 10_000 }).toBe(1);
+    const button = page.getByRole("button", { name: "Submit these readings" });
+    expect(await button.isDisabled()).toBe(true);
+    // pressing Enter in a field of the form must not send it either
+    await page.getByLabel(/k you worked out/).fill("0.01");
+    await page.getByLabel(/k you worked out/).press("Enter");
+    await page.waitForTimeout(1000);
+    expect(await button.isDisabled()).toBe(true);
+    expect(posts).toEqual([]);
+    expect(new URL(page.url()).pathname).toBe(`/groups/${fx.groupId}/submissions`);
+    expect(await Submission.count({ where: { groupId: fx.groupId } })).toBe(before);
+    await page.close();
+  });
+});
 
 describe("upload, review, release, feedback", () => {
   let submissionUrl = "";

@@ -301,6 +301,19 @@ describe("feedback: one cause, one line", () => {
     expect(s.analysisPart).toBe(0);
   });
 
+  test("a reported k 1/1000 (or 1000 times) of the group's own line gets a concentration-unit hint at this second-order bench", async () => {
+    const t = truth();
+    const lines = ["t / min,CA (mmol/L)", ...t.t.map((x, i) => `${x / 60},${sig4(t.CA[i] * 1000)}`)];
+    // the slope of 1/CA against t with CA in mmol/L: k in L/(mmol·s), numerically k/1000
+    const small = await marked(0, { bytes: lines.join("\n"), name: "per-mmol.csv" }, { reportedK: String(t.k / 1000) });
+    expect(small.feedback.join(" ")).toMatch(/about 1\/1000 of the slope of your own straight line: it looks like a k in L\/\(mmol·s\)/);
+    expect(small.experimentPart).toBe(60);
+    expect(small.analysisPart).toBe(0);
+    const large = await marked(0, { bytes: lines.join("\n"), name: "thousand.csv" }, { reportedK: String(t.k * 1000) });
+    expect(large.feedback.join(" ")).toMatch(/about 1000 times the slope of your own straight line/);
+    expect(large.feedback.join(" ")).not.toMatch(/per minute|1\/1000/);
+  });
+
   test("a workbook whose formulas were never calculated is refused (422) naming that cause and the fix", async () => {
     const t = truth();
     // formulas with no cached values, as a program that writes workbooks without calculating saves them

@@ -84,6 +84,21 @@ describe("feedback lines", () => {
     expect(lines[0]).toMatch(/For your bench's feed the straight line is ln\[\(CB·CA0\)\/\(CB0·CA\)\].*you used 1\/CA − 1\/CA0/);
     expect(lines[1]).toMatch(/differs from the straight line through your own readings by 35.0 %/);
   });
+
+  test("a k 1/1000 of the own line is a concentration-unit hint only where k carries a concentration unit", () => {
+    // k/1000 is the slope with CA in mmol/L for a second-order law (L/(mmol·s)); a first-order k
+    // (1/s) does not change with the concentration unit (common practice, no source)
+    const at = (expectedForm: string, deviationPct: number) => feedbackLines({
+      flags: [], rowNumbers: [], late: false, excludedRows: [],
+      experiment: { band: "full", score: 1, deviationPct: 1 }, analysis: { band: "none", score: 0, deviationPct },
+      reportedK: 1e-4, reportedMethod: expectedForm, expectedForm,
+    }).join(" ");
+    expect(at("1/CA - 1/CA0", -99.9)).toMatch(/about 1\/1000 of the slope.*Multiply it by 1000/);
+    expect(at("ln[(CB*CA0)/(CB0*CA)]", (1000 * 1.05 - 1) * 100)).toMatch(/about 1000 times the slope/);
+    expect(at("ln(CA0/CA)", -99.9)).toMatch(/differs from the straight line through your own readings by 99.9 %/);
+    expect(at("ln(CA0/CA)", -99.9)).not.toMatch(/1000/);
+    expect(at("1/CA - 1/CA0", (1 / 60 - 1) * 100)).toMatch(/about 1\/60 of the slope/);
+  });
 });
 
 // A + B, first order in each, unequal feed; k at 25 °C and Ea invented for the test.

@@ -92,12 +92,21 @@ export function constantReadings(values: readonly number[] | undefined): boolean
   return size === 0 || (max - min) <= 0.02 * size;
 }
 
-/** A reported k that is 60 times (or 1/60 of) the group's own line: minutes instead of seconds. */
-function perMinuteHint(analysis: CheckScore): string | null {
+/**
+ * A reported k that is a unit factor away from the group's own line: 60 (or 1/60) is minutes
+ * against seconds; 1000 (or 1/1000) is mmol/L against mol/L, which changes k only where k carries
+ * a concentration unit (second order, L/(mol·s); a first-order k is per second whatever the
+ * concentration unit). Within 10 % of the factor (common practice, no source).
+ */
+function unitFactorHint(analysis: CheckScore, expectedForm: string): string | null {
   const ratio = 1 + analysis.deviationPct / 100;
   if (!Number.isFinite(ratio) || ratio <= 0) return null;
-  if (Math.abs(ratio / 60 - 1) < 0.1) return "Your reported k is about 60 times the slope of your own straight line: it looks like a k per minute where k per second was asked for. Divide it by 60 (or plot against time in seconds).";
-  if (Math.abs(ratio * 60 - 1) < 0.1) return "Your reported k is about 1/60 of the slope of your own straight line: it looks like your times were in seconds while the k was taken per minute, or the reverse. Multiply it by 60 if your slope was per minute.";
+  const near = (factor: number) => Math.abs(ratio / factor - 1) < 0.1;
+  if (near(60)) return "Your reported k is about 60 times the slope of your own straight line: it looks like a k per minute where k per second was asked for. Divide it by 60 (or plot against time in seconds).";
+  if (near(1 / 60)) return "Your reported k is about 1/60 of the slope of your own straight line: it looks like your times were in seconds while the k was taken per minute, or the reverse. Multiply it by 60 if your slope was per minute.";
+  if (expectedForm === "ln(CA0/CA)") return null;
+  if (near(1 / 1000)) return "Your reported k is about 1/1000 of the slope of your own straight line: it looks like a k in L/(mmol·s), from concentrations plotted in mmol/L, where L/(mol·s) was asked for. Multiply it by 1000 (or plot with concentrations in mol/L).";
+  if (near(1000)) return "Your reported k is about 1000 times the slope of your own straight line: it looks like concentrations in mol/L were divided by 1000 once more, or the k was taken per mmol/L the wrong way round. Check the concentration unit in your plot; k is asked for in L/(mol·s).";
   return null;
 }
 
@@ -123,7 +132,7 @@ export function feedbackLines(input: FeedbackInput): string[] {
   }
   if (input.reportedK === null) lines.push("You did not report a rate constant of your own, so the analysis check scored nothing.");
   else if (input.analysis.band === "full") lines.push("Your reported k matches the straight line through your own readings.");
-  else lines.push(perMinuteHint(input.analysis) ?? `Your reported k differs from the straight line through your own readings by ${Math.abs(input.analysis.deviationPct).toFixed(1)} %: check the slope and the plot you used.`);
+  else lines.push(unitFactorHint(input.analysis, input.expectedForm) ?? `Your reported k differs from the straight line through your own readings by ${Math.abs(input.analysis.deviationPct).toFixed(1)} %: check the slope and the plot you used.`);
   lines.push(
     input.experiment.band === "full"
       ? "Your rate constant agrees with the expected value for your bench's temperature."
