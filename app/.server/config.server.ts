@@ -19,11 +19,28 @@ export function sessionSecretsFrom(value: string | undefined): string[] {
   return list.length ? list : [DEV_SECRET];
 }
 
+/**
+ * Worker threads of the compute pool (app/.server/compute/pool.server.ts): COMPUTE_THREADS, by
+ * default one less than the CPUs Node may use (at least 1), so the request thread keeps a core;
+ * 0 runs the work on the request thread (for comparison in benchmarks, or a one-core machine).
+ */
+export function computeThreadsFrom(value: string | undefined, cpus: number): { threads: number; problem: string | null } {
+  const fallback = Math.max(1, cpus - 1);
+  if (value === undefined || value.trim() === "") return { threads: fallback, problem: null };
+  const n = Number(value);
+  if (!Number.isInteger(n) || n < 0 || n > 64) {
+    return { threads: fallback, problem: `COMPUTE_THREADS (${value}) must be a whole number from 0 to 64: the worker threads for fits and workbooks (0 runs them on the request thread; unset: ${fallback} here).` };
+  }
+  return { threads: n, problem: null };
+}
+
 /** What stops a production server or worker from starting (empty when it may start). */
 export function productionConfigProblems(env: NodeJS.ProcessEnv = process.env, part: "server" | "worker" = "server"): string[] {
   if (env.NODE_ENV !== "production") return [];
   const problems: string[] = [];
   if (part === "server") problems.push(...secretProblems(env), ...ssoProblems(env));
+  const threads = computeThreadsFrom(env.COMPUTE_THREADS, 1).problem;
+  if (threads) problems.push(threads);
   if (!env.APP_URL) problems.push("APP_URL is not set: set it to the address people use, e.g. https://ratebook.example.org (page forms are accepted only from it; mailed links use it).");
   else {
     try {

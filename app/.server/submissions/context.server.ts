@@ -96,15 +96,7 @@ export async function practicalOfSubmission(sessionId: number, benchId: number |
   return { session: bench.session!, bench, system: bench.session!.reactionSystem! };
 }
 
-/** Words a column header may use for what the practical measures, to guess the value column. */
-export function valueHints(measured: string): string[] {
-  switch (measured) {
-    case "conductivity": return ["kappa", "κ", "conductivity", "cond", "mS", "µS", "uS"];
-    case "absorbance": return ["abs", "A (", "absorbance", "OD"];
-    case "titration": return ["titre", "titer", "V", "volume", "c"];
-    default: return ["CA", "c_A", "[A]", "conc", "c ("];
-  }
-}
+export { valueHints } from "./parse.server";
 
 /** The engine's measurement for the practical's measured quantity (conductivity: S0 from the first reading, S∞ fitted). */
 export function measurementOf(system: ReactionSystem): Measurement {

@@ -4,7 +4,8 @@
 import type { Transaction } from "sequelize";
 import { getSequelize } from "../db/sequelize.server";
 import { Submission } from "../db/submissions.server";
-import { markRun, type MarkAttempt } from "~/lib/marking/mark-run";
+import type { MarkAttempt, RunInput } from "~/lib/marking/mark-run";
+import { compute } from "../compute/pool.server";
 import type { ConcentrationUnit, TimeUnit } from "~/lib/kinetics/units";
 import { markingContext, practicalOfSubmission } from "./context.server";
 import { trimFit } from "./service.server";
@@ -16,7 +17,8 @@ export async function computeMark(s: Submission, transaction?: Transaction): Pro
   if (!practical) return { ok: false, errors: [{ path: "bench", message: "the group's bench in this practical no longer exists" }] };
   if (!s.readings) return { ok: false, errors: [{ path: "file", message: "no readings were read from the file" }] };
   void transaction;
-  return markRun(markingContext(practical), {
+  // the fit runs in the compute pool's worker threads
+  const run: RunInput = {
     points: s.readings.points,
     rowNumbers: s.readings.rowNumbers,
     timeUnit: s.timeUnit as TimeUnit,
@@ -27,7 +29,8 @@ export async function computeMark(s: Submission, transaction?: Transaction): Pro
     late: s.late,
     excludedRows: (s.excluded ?? []).map((e) => e.row),
     columns: { time: columnText(s.readings.time), value: columnText(s.readings.value) },
-  });
+  };
+  return compute("mark", { ctx: markingContext(practical), run });
 }
 
 /** The columns a mark attempt sets on the submission. */

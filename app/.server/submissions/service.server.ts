@@ -7,18 +7,20 @@ import { getSequelize } from "../db/sequelize.server";
 import type { User } from "../db/models.server";
 import { Submission, SubmissionFile, type StoredReadings } from "../db/submissions.server";
 import { enqueue } from "../jobs/queue.server";
-import { contentTypeOf, readReadingsFile } from "../readings/read.server";
+import { contentTypeOf } from "../readings/read.server";
 import type { UploadedFile } from "./upload.server";
-import { markingContext, practicalFor, valueHints, type PracticalOfGroup } from "./context.server";
-import { Refusal } from "~/lib/readings/csv";
+import { markingContext, practicalFor, type PracticalOfGroup } from "./context.server";
+import type { ReadingProblem } from "~/lib/readings/extract";
+import { columnText } from "~/lib/readings/table";
 import { parseStart } from "~/lib/readings/clock-times";
-import { extractPoints, guessColumns, timeUnitFrom, concentrationUnitFrom, type ReadingProblem } from "~/lib/readings/extract";
-import { columnText, describeTable, numericColumns } from "~/lib/readings/table";
-import { previewRun, rangeCheck } from "~/lib/marking/mark-run";
+import { compute } from "../compute/pool.server";
+import type { ParsedUpload, UploadChoices } from "./parse.server";
 import { runPlots, type RunPlots } from "~/lib/marking/plots";
 import { REPORTED_METHODS } from "~/lib/marking/feedback";
 import { CONCENTRATION_UNITS, TIME_UNITS, type ConcentrationUnit, type TimeUnit } from "~/lib/kinetics/units";
 import type { FitResult } from "~/lib/kinetics";
+
+export type { ParsedUpload, ParseOutcome, UploadChoices } from "./parse.server";
 
 export interface FieldProblem {
   path: string;
@@ -26,19 +28,6 @@ export interface FieldProblem {
 }
 
 /** The upload form's fields, checked; every problem with the field it is in. */
-export interface UploadChoices {
-  timeColumn: string | undefined;
-  valueColumn: string | undefined;
-  measured: "concentrationA" | "session";
-  timeUnit: TimeUnit | undefined;
-  concentrationUnit: ConcentrationUnit | undefined;
-  reportedK: number | null;
-  reportedMethod: string | null;
-  sessionId: number | null;
-  /** the clock time of mixing (seconds after midnight), for readings written as clock times */
-  startTime: number | null;
-}
-
 export function readChoices(fields: Record<string, string>, sessionMeasured: string | null): { choices: UploadChoices; problems: FieldProblem[] } {
   const problems: FieldProblem[] = [];
   const text = (k: string) => (fields[k] ?? "").trim();
@@ -83,71 +72,6 @@ export function readChoices(fields: Record<string, string>, sessionMeasured: str
   };
 }
 
-export interface ParsedUpload {
-  ok: true;
-  readings: StoredReadings;
-  problems: ReadingProblem[];
-  timeUnit: TimeUnit;
-  concentrationUnit: ConcentrationUnit;
-  columns: Array<{ number: number; letter: string; header: string; unit: string; numeric: boolean }>;
-}
-export type ParseOutcome = ParsedUpload | { ok: false; message: string; columns: ParsedUpload["columns"] };
-
-/** Reads the file and picks the columns and units (as chosen, else guessed from the header). */
-export async function parseUpload(file: UploadedFile, choices: UploadChoices, measured: string): Promise<ParseOutcome> {
-  let columns: ParsedUpload["columns"] = [];
-  try {
-    const table = await readReadingsFile(file.bytes, file.name, { start: choices.startTime });
-    const shape = describeTable(table);
-    if (shape) {
-      const numeric = new Set(numericColumns(shape).map((c) => c.index));
-      columns = shape.columns.map((c) => ({ number: c.index + 1, letter: c.letter, header: c.header, unit: c.unit, numeric: numeric.has(c.index) }));
-    }
-    const hints = choices.measured === "concentrationA" ? valueHints("concentration") : valueHints(measured);
-    const ex = extractPoints(table, { time: choices.timeColumn, value: choices.valueColumn, valueHints: hints }, file.name);
-    const guess = guessColumns(ex.shape, hints);
-    const timeUnit = choices.timeUnit ?? timeUnitFrom(ex.time.unit) ?? "s";
-    const concentrationUnit = choices.concentrationUnit ?? concentrationUnitFrom(ex.value.unit) ?? (guess?.concentrationUnit ?? "mol/L");
-    const col = (c: typeof ex.time) => ({ letter: c.letter, header: c.header, unit: c.unit });
-    return {
-      ok: true,
-      readings: { points: ex.points, rowNumbers: ex.rowNumbers, time: col(ex.time), value: col(ex.value), notes: ex.notes },
-      problems: ex.problems,
-      timeUnit,
-      concentrationUnit,
-      columns,
-    };
-  } catch (error) {
-    if (error instanceof Refusal) return { ok: false, message: error.message, columns };
-    throw error;
-  }
-}
-
-/** The engine's view of what was read: the pairs, their rows and units, the columns' names. */
-export function runOf(parsed: ParsedUpload, choices: UploadChoices) {
-  const name = (c: StoredReadings["time"]) => columnText(c);
-  return {
-    points: parsed.readings.points,
-    rowNumbers: parsed.readings.rowNumbers,
-    timeUnit: parsed.timeUnit,
-    concentrationUnit: parsed.concentrationUnit,
-    measured: choices.measured,
-    columns: { time: name(parsed.readings.time), value: name(parsed.readings.value) },
-  };
-}
-
-/**
- * The file read and range-checked as the marking job will check it (mark-run.ts rangeCheck): a
- * file the job would refuse is refused now, with the same message, instead of waiting for ever.
- */
-export async function uploadChecked(practical: PracticalOfGroup, file: UploadedFile, choices: UploadChoices): Promise<ParseOutcome> {
-  const parsed = await parseUpload(file, choices, practical.system.measured);
-  if (!parsed.ok) return parsed;
-  const checked = rangeCheck(markingContext(practical), { ...runOf(parsed, choices), reportedK: null, reportedMethod: null, late: false, excludedRows: [] });
-  if (!checked.ok) return { ok: false, message: `${file.name}: ${checked.message}`, columns: parsed.columns };
-  return parsed;
-}
-
 function badRequest(problems: FieldProblem[], api: boolean): never {
   if (api) throw Response.json({ errors: problems }, { status: 400 });
   throw data({ message: problems.map((p) => `${p.path}: ${p.message}`).join("; ") }, { status: 400 });
@@ -182,15 +106,13 @@ export async function previewUpload(practical: PracticalOfGroup, file: UploadedF
   const { choices, problems } = readChoices(fields, practical.system.measured);
   if (!file) badRequest([{ path: "file", message: "is required: choose the readings file (CSV or .xlsx)" }], api);
   if (problems.length) badRequest(problems, api);
-  const parsed = await parseUpload(file, choices, practical.system.measured);
-  const ctx = markingContext(practical);
+  // Reading the file and the fit run in the compute pool's worker threads.
+  const { parsed, fit } = await compute("preview", { file, choices, measured: practical.system.measured, ctx: markingContext(practical) });
   const base: Preview = {
     columns: parsed.columns, time: null, value: null, timeUnit: null, concentrationUnit: null, refused: null, problems: [], notes: [],
     plots: null, n: 0, fit: null, fitErrors: [], expectedLine: "",
   };
-  if (!parsed.ok) return { ...base, refused: parsed.message };
-  const run = { ...runOf(parsed, choices) };
-  const fit = previewRun(ctx, run);
+  if (!parsed.ok || !fit) return { ...base, refused: parsed.ok ? null : parsed.message };
   // what the upload would refuse, the preview refuses with the same words (and the page will not send it)
   if (!fit.ok) return { ...base, time: parsed.readings.time, value: parsed.readings.value, timeUnit: parsed.timeUnit, concentrationUnit: parsed.concentrationUnit, problems: parsed.problems, notes: parsed.readings.notes, n: parsed.readings.points.length, refused: fit.message };
   const result = fit.ok ? trimFit(fit.result) : null;
@@ -247,7 +169,8 @@ export async function createSubmission(user: User, groupId: number, file: Upload
   }
   const { choices, problems } = readChoices(fields, practical.system.measured);
   if (problems.length) badRequest(problems, api);
-  const parsed = await uploadChecked(practical, file, choices);
+  // reading the file and its range checks run in the compute pool's worker threads
+  const parsed = await compute("parse", { file, choices, measured: practical.system.measured, ctx: markingContext(practical) });
   const sha256 = createHash("sha256").update(file.bytes).digest("hex");
   const now = new Date();
   const late = practical.session.deadline ? now > practical.session.deadline : false;

@@ -2,7 +2,8 @@ import type { Route } from "./+types/fit";
 import { currentPrincipal, requireCourseStaff } from "~/.server/guards.server";
 import { requireSameOriginWrite } from "~/.server/same-origin.server";
 import { requireWithinLimit } from "~/.server/throttle.server";
-import { runRequest, validateRequest } from "~/lib/kinetics";
+import { validateRequest } from "~/lib/kinetics";
+import { compute } from "~/.server/compute/pool.server";
 import { readJson } from "~/.server/body.server";
 
 /**
@@ -20,7 +21,8 @@ export async function action({ request }: Route.ActionArgs) {
   const body = await readJson(request);
   const checked = validateRequest(body);
   if (!checked.ok) return Response.json({ errors: checked.errors }, { status: 400 });
-  return Response.json(runRequest(checked.value));
+  // the fit runs in the compute pool, off the request thread
+  return Response.json(await compute("fit", checked.value));
 }
 
 export function loader() {
