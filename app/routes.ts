@@ -15,6 +15,7 @@ export default [
     route("login", "routes/lti/login.ts"),
     route("launch", "routes/lti/launch.ts"),
     route("problem", "routes/lti/problem.tsx"),
+    route("jwks", "routes/lti/jwks.ts"),
   ]),
   route("sign-out", "routes/auth/sign-out.tsx"),
   route("invitation/:token", "routes/auth/invitation.tsx"),
@@ -57,6 +58,7 @@ export default [
       route("review", "routes/sessions/review.tsx"),
       route("review/:submissionId", "routes/sessions/review-submission.tsx"),
       route("class-results", "routes/sessions/class-results.tsx"),
+      route("platform-marks", "routes/sessions/platform-marks.tsx"),
     ]),
     route("fit-check", "routes/tools/fit-check.tsx"),
     ...prefix("admin", [

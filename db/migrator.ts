@@ -26,6 +26,7 @@ import * as m0047 from "./migrations/0047-worker-heartbeats";
 import * as m0048 from "./migrations/0048-version-that-counts";
 import * as m0050 from "./migrations/0050-lti-launch";
 import * as m0051 from "./migrations/0051-course-invitations";
+import * as m0056 from "./migrations/0056-lti-grades";
 
 const migrations: Migration[] = [
   { name: "0001-foundation", ...m0001 },
@@ -46,6 +47,7 @@ const migrations: Migration[] = [
   { name: "0048-version-that-counts", ...m0048 },
   { name: "0050-lti-launch", ...m0050 },
   { name: "0051-course-invitations", ...m0051 },
+  { name: "0056-lti-grades", ...m0056 },
 ];
 
 export interface Migration {

@@ -66,14 +66,14 @@ if (process.env.FAKE_PLATFORM !== "0") {
   const ltiPort = Number(process.env.FAKE_PLATFORM_PORT ?? 3092);
   const appUrl = (process.env.APP_URL ?? `http://localhost:${port}`).replace(/\/$/, "");
   try {
-    learningPlatform = await startFakePlatform({ port: ltiPort, clientId: "ratebook-demo-tool", deploymentId: "demo-deployment-1", toolLoginUrl: `${appUrl}/lti/login`, toolLaunchUrl: `${appUrl}/lti/launch` });
+    learningPlatform = await startFakePlatform({ port: ltiPort, clientId: "ratebook-demo-tool", deploymentId: "demo-deployment-1", toolLoginUrl: `${appUrl}/lti/login`, toolLaunchUrl: `${appUrl}/lti/launch`, toolKeySet: `${appUrl}/lti/jwks` });
   } catch (error) {
     if ((error as NodeJS.ErrnoException).code !== "EADDRINUSE") throw error;
     console.error(`[lti] port ${ltiPort} is taken: is another \`npm start\` running? Stop it, or choose another port with FAKE_PLATFORM_PORT (FAKE_PLATFORM=0 leaves it out).`);
     process.exit(1);
   }
   const { LtiPlatform } = await import("../app/.server/db/lti.server");
-  const fields = { name: "Fake Platform (local demo, invented)", loginUrl: learningPlatform.loginUrl, keySetUrl: learningPlatform.keySetUrl, tokenUrl: null, deploymentIds: [learningPlatform.deploymentId], createdById: null };
+  const fields = { name: "Fake Platform (local demo, invented)", loginUrl: learningPlatform.loginUrl, keySetUrl: learningPlatform.keySetUrl, tokenUrl: learningPlatform.tokenUrl, deploymentIds: [learningPlatform.deploymentId], createdById: null };
   const [row, created] = await LtiPlatform.findOrCreate({ where: { issuer: learningPlatform.issuer, clientId: learningPlatform.clientId }, defaults: { issuer: learningPlatform.issuer, clientId: learningPlatform.clientId, ...fields } });
   if (!created) await row.update(fields);
   console.log(`[lti] fake learning platform on ${learningPlatform.issuer} (its launch links: ${learningPlatform.issuer}/)`);

@@ -52,6 +52,7 @@ export const ACCESS: Record<string, RouteAccess> = {
   // send everyone to the page that says why (303); that page without a refused launch is a 404.
   "routes/lti/login.ts": { url: "/lti/login", get: [303, 303, 303, 303, 303, 303], post: [303, 303, 303, 303, 303, 303] },
   "routes/lti/launch.ts": { url: "/lti/launch", get: [303, 303, 303, 303, 303, 303], post: [303, 303, 303, 303, 303, 303] },
+  "routes/lti/jwks.ts": { url: "/lti/jwks", get: [200, 200, 200, 200, 200, 200], post: [405, 405, 405, 405, 405, 405] },
   "routes/lti/problem.tsx": { url: "/lti/problem", get: [404, 404, 404, 404, 404, 404], post: NO_ACTION_PAGE, screens: ["signedOut"] },
   "routes/auth/sign-out.tsx": { url: "/sign-out", get: [302, 302, 302, 302, 302, 302], post: [302, 302, 302, 302, 302, 302], endsSession: true },
   "routes/auth/invitation.tsx": { url: "/invitation/{badToken}", get: [200, 200, 200, 200, 200, 200], post: [400, 400, 400, 400, 400, 400], screens: ["signedOut"] },
@@ -122,6 +123,7 @@ export const ACCESS: Record<string, RouteAccess> = {
   // course's student is refused (403: not in the course). A page upload needs multipart (415).
   "routes/groups/submissions.tsx": { url: "/groups/{group}/submissions", get: [302, 200, 200, 200, 200, 403], post: [302, 415, 415, 415, 415, 403], screens: ["student", "instructor"] },
   "routes/submissions/submission.tsx": { url: "/submissions/{submission}", get: [302, 200, 200, 200, 200, 403], post: NO_ACTION_PAGE, screens: ["student", "instructor"] },
+  "routes/sessions/platform-marks.tsx": { url: "/sessions/{workSession}/platform-marks", get: [302, 200, 200, 403, 403, 403], post: [302, 400, 400, 403, 403, 403], screens: ["instructor"] },
   "routes/sessions/review.tsx": { url: "/sessions/{workSession}/review", get: [302, 200, 200, 200, 403, 403], post: [302, 400, 400, 403, 403, 403], screens: ["instructor", "demonstrator"] },
   "routes/sessions/review-submission.tsx": { url: "/sessions/{workSession}/review/{submission}", get: [302, 200, 200, 200, 403, 403], post: [302, 400, 400, 400, 403, 403], screens: ["instructor", "demonstrator"] },
   // Class results: staff read; only instructors (and admins) change exclusions (an empty form is 400 for them).

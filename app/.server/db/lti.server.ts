@@ -1,5 +1,6 @@
 // LTI 1.3 registrations and mappings (db/migrations/0050-lti-launch.ts). lti_logins is used
-// through plain SQL only (app/.server/lti/launch.server.ts).
+// through plain SQL only (app/.server/lti/launch.server.ts); so are lti_tool_keys, lti_line_items and
+// lti_scores (db/migrations/0056-lti-grades.ts, app/.server/lti/grades.server.ts).
 import { DataTypes, Model, type CreationOptional, type ForeignKey, type InferAttributes, type InferCreationAttributes } from "sequelize";
 import { Course, sequelize, User } from "./models.server";
 
@@ -23,6 +24,9 @@ export class LtiContext extends Model<InferAttributes<LtiContext>, InferCreation
   declare contextId: string;
   declare courseId: ForeignKey<Course["id"]>;
   declare title: string | null;
+  /** AGS line item container of the platform course (the launch's endpoint claim), null when it takes no scores */
+  declare lineitemsUrl: CreationOptional<string | null>;
+  declare agsScopes: CreationOptional<string[]>;
   declare createdAt: CreationOptional<Date>;
 }
 
@@ -58,6 +62,8 @@ LtiContext.init(
     id: { type: DataTypes.INTEGER, autoIncrement: true, primaryKey: true },
     contextId: { type: DataTypes.STRING(255), allowNull: false },
     title: { type: DataTypes.STRING(255), allowNull: true },
+    lineitemsUrl: { type: DataTypes.STRING(500), allowNull: true },
+    agsScopes: { type: DataTypes.JSONB, allowNull: false, defaultValue: [] },
     createdAt: DataTypes.DATE,
   },
   { ...common, tableName: "lti_contexts", updatedAt: false },

@@ -21,6 +21,8 @@ export const LTI_CLAIM = {
   resourceLink: "https://purl.imsglobal.org/spec/lti/claim/resource_link",
   roles: "https://purl.imsglobal.org/spec/lti/claim/roles",
   context: "https://purl.imsglobal.org/spec/lti/claim/context",
+  /** AGS 2.0, 3.1: where the platform course's line items are and what the tool may do there */
+  agsEndpoint: "https://purl.imsglobal.org/spec/lti-ags/claim/endpoint",
 } as const;
 
 /** How long a person may take between the login initiation and the launch. */
@@ -32,6 +34,7 @@ export const loginPath = "/lti/login";
 export const launchPath = "/lti/launch";
 export const toolLoginUrl = () => `${config.appUrl}${loginPath}`;
 export const toolLaunchUrl = () => `${config.appUrl}${launchPath}`;
+export const toolKeySetUrl = () => `${config.appUrl}/lti/jwks`;
 
 export type LaunchProblemKind =
   | "unknown-platform"
@@ -279,6 +282,22 @@ export function courseRoleOf(roles: string[]): CourseRole | null {
   return null;
 }
 
+/** The launch's AGS endpoint claim: the line item container (only https, or http on loopback) and the granted scopes. */
+function agsOf(claims: JWTPayload): { lineitemsUrl: string | null; agsScopes: string[] } {
+  const claim = claims[LTI_CLAIM.agsEndpoint] as { lineitems?: unknown; scope?: unknown } | undefined;
+  const url = typeof claim?.lineitems === "string" ? claim.lineitems : null;
+  const scopes = Array.isArray(claim?.scope) ? claim.scope.filter((x): x is string => typeof x === "string") : [];
+  if (!url) return { lineitemsUrl: null, agsScopes: [] };
+  try {
+    const u = new URL(url);
+    const loopback = u.hostname === "127.0.0.1" || u.hostname === "localhost" || u.hostname === "[::1]";
+    if (u.protocol !== "https:" && !(u.protocol === "http:" && loopback)) return { lineitemsUrl: null, agsScopes: [] };
+  } catch {
+    return { lineitemsUrl: null, agsScopes: [] };
+  }
+  return { lineitemsUrl: url.slice(0, 500), agsScopes: scopes };
+}
+
 async function mapLaunch(
   platform: LtiPlatform,
   claims: JWTPayload,
@@ -298,8 +317,12 @@ async function mapLaunch(
       }
       const code = (context.label ?? `LTI-${context.id}`).slice(0, 40);
       course = await Course.create({ code, title: (context.title ?? code).slice(0, 200), term: "" }, { transaction });
-      await LtiContext.create({ platformId: platform.id, contextId: context.id, courseId: course.id, title: context.title }, { transaction });
+      await LtiContext.create({ platformId: platform.id, contextId: context.id, courseId: course.id, title: context.title, ...agsOf(claims) }, { transaction });
       createdCourse = true;
+    } else if (link) {
+      // The latest launch says where the platform course takes scores now.
+      const ags = agsOf(claims);
+      if (ags.lineitemsUrl && (ags.lineitemsUrl !== link.lineitemsUrl || JSON.stringify(ags.agsScopes) !== JSON.stringify(link.agsScopes))) await link.update(ags, { transaction });
     }
     if (course.archivedAt) throw new LaunchRefused("course-archived", `The Ratebook course ${course.code} linked to this platform course is archived.`, 403);
 

@@ -9,6 +9,7 @@ import { Group, GroupMember } from "../db/groups.server";
 import { LabSession } from "../db/lab-sessions.server";
 import { Submission, SubmissionComment, effectiveMark, type Exclusion } from "../db/submissions.server";
 import { recordAudit } from "../audit.server";
+import { queueScoresToPlatform } from "../lti/grades.server";
 import { queueMail } from "../mail/outbox.server";
 import { benchesOfSession } from "./context.server";
 import { computeMark, markColumns } from "./marking.server";
@@ -103,6 +104,15 @@ export async function checkUnflagged(actor: User, session: LabSession, ids: read
   return { changed: chosen.length, skipped: new Set(ids).size - chosen.length };
 }
 
+/**
+ * After release a changed mark goes to the learning platform again (once: only a score whose mark
+ * differs from the one sent waits). Read after the commit, as the gradebook reads committed rows.
+ */
+async function markChangedAfterCommit(submission: Submission) {
+  const session = await LabSession.findByPk(submission.sessionId, { attributes: ["id", "courseId"] });
+  if (session) await queueScoresToPlatform(session);
+}
+
 /** Leaves one reading out (by its row in the file), with a reason; the mark is recomputed at once. */
 export async function excludeReading(actor: User, submission: Submission, row: number, reason: string) {
   const why = reason.trim();
@@ -118,6 +128,7 @@ export async function excludeReading(actor: User, submission: Submission, row: n
     await submission.update({ ...cols, excluded, markedAt: new Date() }, { transaction });
     await recordAudit({ actorId: actor.id, action: "submission.reading-excluded", entityType: "submission", entityId: submission.id, before, after: { excluded, autoMark: cols.autoMark, reason: why } }, transaction);
   });
+  await markChangedAfterCommit(submission);
 }
 
 /** Marks a failed version again (after the practical's settings or the engine were put right); audited. */
@@ -153,6 +164,7 @@ export async function includeReading(actor: User, submission: Submission, row: n
     await submission.update({ ...cols, excluded: submission.excluded, markedAt: new Date() }, { transaction });
     await recordAudit({ actorId: actor.id, action: "submission.reading-included", entityType: "submission", entityId: submission.id, before, after: { excluded: submission.excluded, autoMark: cols.autoMark } }, transaction);
   });
+  await markChangedAfterCommit(submission);
 }
 
 /** Sets (or, with mark null, removes) a reviewer's mark; the reason is required and audited with before and after. */
@@ -165,6 +177,7 @@ export async function overrideMark(actor: User, submission: Submission, mark: nu
     await submission.update({ overrideMark: mark, overrideReason: mark === null ? null : why.slice(0, 1000) }, { transaction });
     await recordAudit({ actorId: actor.id, action: mark === null ? "submission.override-removed" : "submission.mark-overridden", entityType: "submission", entityId: submission.id, before, after: { mark: effectiveMark(submission), overrideMark: mark, reason: why } }, transaction);
   });
+  await markChangedAfterCommit(submission);
 }
 
 export async function addComment(actor: User, submission: Submission, body: string) {
@@ -240,6 +253,7 @@ export async function releaseMarks(actor: User, session: LabSession, showReferen
         mails++;
       }
     }
+    await queueScoresToPlatform(session, transaction);
     await recordAudit({ actorId: actor.id, action: "session.marks-released", entityType: "lab_session", entityId: session.id, before, after: { releasedAt: new Date().toISOString(), showsReference: showReference, mails } }, transaction);
     return { mails };
   });

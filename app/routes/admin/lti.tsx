@@ -6,7 +6,7 @@ import { requireUser } from "~/.server/guards.server";
 import { readForm } from "~/.server/body.server";
 import { formId } from "~/.server/ids.server";
 import { listPlatforms, registerPlatform, removePlatform, type FieldErrors } from "~/.server/lti/platforms.server";
-import { toolLaunchUrl, toolLoginUrl } from "~/.server/lti/launch.server";
+import { toolKeySetUrl, toolLaunchUrl, toolLoginUrl } from "~/.server/lti/launch.server";
 import { Button, Field, FormMessage } from "~/components/form";
 import { PageTitle, TableBox } from "~/components/page";
 import { trailFor } from "~/lib/place";
@@ -17,7 +17,7 @@ export async function loader({ request }: Route.LoaderArgs) {
   await requireUser(request, { roles: ["admin"] });
   const platforms = await listPlatforms();
   return {
-    tool: { loginUrl: toolLoginUrl(), launchUrl: toolLaunchUrl() },
+    tool: { loginUrl: toolLoginUrl(), launchUrl: toolLaunchUrl(), keySetUrl: toolKeySetUrl() },
     platforms: platforms.map((p) => ({ id: p.id, name: p.name, issuer: p.issuer, clientId: p.clientId, loginUrl: p.loginUrl, keySetUrl: p.keySetUrl, tokenUrl: p.tokenUrl, deploymentIds: p.deploymentIds })),
   };
 }
@@ -67,6 +67,7 @@ export default function LearningPlatforms({ loaderData, actionData }: Route.Comp
         <dl className="grid gap-1 text-sm sm:grid-cols-[auto_1fr] sm:gap-x-4">
           <dt className="font-bold">Login initiation</dt><dd className="break-all">{loaderData.tool.loginUrl}</dd>
           <dt className="font-bold">Redirect (launch)</dt><dd className="break-all">{loaderData.tool.launchUrl}</dd>
+          <dt className="font-bold">Tool key set (JWKS, for grades)</dt><dd className="break-all">{loaderData.tool.keySetUrl}</dd>
         </dl>
       </section>
       <section aria-labelledby="list-h" className="mb-6">

@@ -34,6 +34,7 @@ export default function SessionGradebook({ loaderData }: Route.ComponentProps) {
         <Link className="rounded border border-ink-soft px-3 py-1 hover:bg-accent-soft" to={`/sessions/${session.id}`}>Practical page</Link>
         <Link className="rounded border border-ink-soft px-3 py-1 hover:bg-accent-soft" to={`/sessions/${session.id}/review`}>Review queue</Link>
         <Link className="rounded border border-ink-soft px-3 py-1 hover:bg-accent-soft" to={`/courses/${session.courseId}/gradebook`}>Course gradebook</Link>
+        <Link className="rounded border border-ink-soft px-3 py-1 hover:bg-accent-soft" to={`/sessions/${session.id}/platform-marks`}>Learning platform</Link>
         {/* plain links: downloads are resource routes, not pages for the router to load */}
         <a className="rounded border border-ink-soft px-3 py-1 hover:bg-accent-soft" href={`/sessions/${session.id}/export.xlsx`} download>Download workbook (.xlsx)</a>
         <a className="rounded border border-ink-soft px-3 py-1 hover:bg-accent-soft" href={`/sessions/${session.id}/export.csv`} download>Marks (.csv)</a>

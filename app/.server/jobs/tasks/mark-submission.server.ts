@@ -3,6 +3,9 @@
 import { z } from "zod";
 import { defineTask } from "../define-task.server";
 import { markSubmission } from "../../submissions/marking.server";
+import { Submission } from "../../db/submissions.server";
+import { LabSession } from "../../db/lab-sessions.server";
+import { queueScoresToPlatform } from "../../lti/grades.server";
 
 const payload = z.object({ submissionId: z.number().int().positive() });
 export type MarkSubmissionPayload = z.infer<typeof payload>;
@@ -15,4 +18,8 @@ declare module "../queue.server" {
 
 export const markSubmissionTask = defineTask("mark-submission", payload, async ({ submissionId }) => {
   await markSubmission(submissionId);
+  // A version marked after release (re-marking, a late upload) changes what the platform should hold.
+  const submission = await Submission.findByPk(submissionId, { attributes: ["id", "sessionId"] });
+  const session = submission ? await LabSession.findByPk(submission.sessionId, { attributes: ["id", "courseId"] }) : null;
+  if (session) await queueScoresToPlatform(session);
 });
