@@ -24,6 +24,13 @@ export interface Calibration {
   aliquotMl?: number;
   titratedSpecies?: "A" | "B";
   titrant?: string;
+  /** mol of the titrated species per mol of titrant (1 when not given) */
+  titrationRatio?: number;
+  /** aliquots run into a known excess of a quench reagent (mol/L, mL) whose excess is titrated */
+  quenchMolL?: number;
+  quenchMl?: number;
+  /** mol of the titrated species one mol of quench reagent takes up (1 when not given) */
+  quenchRatio?: number;
 }
 
 /** A stock solution the prep room can make up. */

@@ -32,6 +32,11 @@ export interface StoredChecks {
   experiment: { deviationPct: number; band: string; score: number };
   analysis: { deviationPct: number; band: string; score: number };
   rowNumbers: number[];
+  /** how the readings became the engine's measurement (titres converted, where S0 and S∞ came from) */
+  notes?: string[];
+  /** what the group's k was judged against: its straight line, or the engine's curve fit */
+  analysisAgainst?: "line" | "curve";
+  kAnalysis?: number;
 }
 
 export class Submission extends Model<InferAttributes<Submission>, InferCreationAttributes<Submission>> {

@@ -47,6 +47,10 @@ export const reactionSchema = z
     aliquotMl: optionalPositive("the aliquot volume"),
     titratedSpecies: z.enum(["A", "B"]).optional(),
     titrant: z.string().trim().max(120).optional(),
+    titrationRatio: optionalPositive("the mol of titrated species per mol of titrant"),
+    quenchMolL: optionalPositive("the quench reagent's concentration"),
+    quenchMl: optionalPositive("the quench volume"),
+    quenchRatio: optionalPositive("the mol of titrated species per mol of quench reagent"),
     stocksA: z.string().max(200).optional(),
     stocksB: z.string().max(200).optional(),
     hazards: z.array(hazardRow).max(8).optional(),
@@ -66,6 +70,10 @@ export const reactionSchema = z
     if (r.measured === "titration") {
       need("titrantMolL", "Titration needs the titrant concentration (mol/L).");
       need("aliquotMl", "Titration needs the aliquot volume (mL).");
+      if ((r.quenchMolL === undefined) !== (r.quenchMl === undefined)) {
+        need("quenchMolL", "A back-titration needs the quench reagent's concentration (mol/L) and its volume (mL).");
+        need("quenchMl", "A back-titration needs the quench reagent's concentration (mol/L) and its volume (mL).");
+      }
     }
     for (const key of ["stocksA", "stocksB"] as const) {
       for (const s of splitCodes(r[key] ?? "")) {
@@ -85,7 +93,7 @@ function toAttributes(input: ReactionInput) {
   const calibration: Calibration = {};
   if (input.measured === "conductivity") Object.assign(calibration, { conductivityStart: input.conductivityStart, conductivityEnd: input.conductivityEnd });
   if (input.measured === "absorbance") Object.assign(calibration, { epsilon: input.epsilon, pathCm: input.pathCm, absorbingSpecies: input.absorbingSpecies ?? "A" });
-  if (input.measured === "titration") Object.assign(calibration, { titrantMolL: input.titrantMolL, aliquotMl: input.aliquotMl, titratedSpecies: input.titratedSpecies ?? "B", titrant: input.titrant ?? "" });
+  if (input.measured === "titration") Object.assign(calibration, { titrantMolL: input.titrantMolL, aliquotMl: input.aliquotMl, titratedSpecies: input.titratedSpecies ?? "B", titrant: input.titrant ?? "", titrationRatio: input.titrationRatio ?? 1, ...(input.quenchMolL && input.quenchMl ? { quenchMolL: input.quenchMolL, quenchMl: input.quenchMl, quenchRatio: input.quenchRatio ?? 1 } : {}) });
   const stocks: Stock[] = [];
   for (const [species, list, label] of [["A", input.stocksA, input.speciesA], ["B", input.stocksB, input.speciesB]] as const) {
     for (const s of splitCodes(list ?? "")) stocks.push({ species, label, concentrationMolL: Number(s) });

@@ -11,6 +11,7 @@ import { ReactionSystem } from "../db/reaction-systems.server";
 import type { Measurement } from "~/lib/kinetics";
 import { rubricFrom } from "~/lib/marking/rubric";
 import type { MarkingContext } from "~/lib/marking/mark-run";
+import type { TitrationSetup } from "~/lib/marking/titres";
 
 export type Viewer = "staff" | "member";
 
@@ -118,8 +119,28 @@ export function measurementOf(system: ReactionSystem): Measurement {
   }
 }
 
+/** A titration practical's stored calibration as the marking needs it (titres in mL to mol/L). */
+export function titrationOf(system: ReactionSystem): TitrationSetup | undefined {
+  if (system.measured !== "titration") return undefined;
+  const cal = (system.calibration ?? {}) as Record<string, unknown>;
+  const positive = (x: unknown) => (typeof x === "number" && x > 0 ? x : undefined);
+  const titrantMolL = positive(cal.titrantMolL);
+  const aliquotMl = positive(cal.aliquotMl);
+  if (!titrantMolL || !aliquotMl) return undefined;
+  const quenchMolL = positive(cal.quenchMolL);
+  const quenchMl = positive(cal.quenchMl);
+  return {
+    species: cal.titratedSpecies === "B" ? "B" : "A",
+    titrantMolL,
+    aliquotMl,
+    speciesPerTitrant: positive(cal.titrationRatio) ?? 1,
+    ...(quenchMolL && quenchMl ? { quench: { molL: quenchMolL, ml: quenchMl, speciesPerQuench: positive(cal.quenchRatio) ?? 1 } } : {}),
+  };
+}
+
 export function markingContext(p: PracticalOfGroup): MarkingContext {
   return {
+    titration: titrationOf(p.system),
     reaction: { a: p.system.coeffA, b: p.system.coeffB, orderA: p.system.orderA, orderB: p.system.orderB },
     feed: { CA0: p.bench.CA0, CB0: p.bench.CB0 },
     temperatureC: p.bench.temperatureC,

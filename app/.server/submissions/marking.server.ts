@@ -29,6 +29,7 @@ export async function computeMark(s: Submission, transaction?: Transaction): Pro
     late: s.late,
     excludedRows: (s.excluded ?? []).map((e) => e.row),
     columns: { time: columnText(s.readings.time), value: columnText(s.readings.value) },
+    valueColumn: s.readings.value,
   };
   return compute("mark", { ctx: markingContext(practical), run });
 }
@@ -55,6 +56,7 @@ export function markColumns(attempt: Awaited<ReturnType<typeof computeMark>>) {
       experiment: attempt.experiment,
       analysis: attempt.analysis,
       rowNumbers: attempt.rowNumbers.length > 2000 ? [] : attempt.rowNumbers,
+      notes: attempt.notes,
     },
     experimentPart: attempt.parts.experimentPart,
     analysisPart: attempt.parts.analysisPart,

@@ -84,6 +84,7 @@ export function runOf(parsed: ParsedUpload, choices: UploadChoices) {
     concentrationUnit: parsed.concentrationUnit,
     measured: choices.measured,
     columns: { time: name(parsed.readings.time), value: name(parsed.readings.value) },
+    valueColumn: parsed.readings.value,
   };
 }
 

@@ -114,7 +114,7 @@ export async function previewUpload(practical: PracticalOfGroup, file: UploadedF
   };
   if (!parsed.ok || !fit) return { ...base, refused: parsed.ok ? null : parsed.message };
   // what the upload would refuse, the preview refuses with the same words (and the page will not send it)
-  if (!fit.ok) return { ...base, time: parsed.readings.time, value: parsed.readings.value, timeUnit: parsed.timeUnit, concentrationUnit: parsed.concentrationUnit, problems: parsed.problems, notes: parsed.readings.notes, n: parsed.readings.points.length, refused: fit.message };
+  if (!fit.ok) return { ...base, time: parsed.readings.time, value: parsed.readings.value, timeUnit: parsed.timeUnit, concentrationUnit: parsed.concentrationUnit, problems: parsed.problems, notes: [...parsed.readings.notes, ...fit.notes], n: parsed.readings.points.length, refused: fit.message };
   const result = fit.ok ? trimFit(fit.result) : null;
   return {
     ...base,
@@ -123,7 +123,7 @@ export async function previewUpload(practical: PracticalOfGroup, file: UploadedF
     timeUnit: parsed.timeUnit,
     concentrationUnit: parsed.concentrationUnit,
     problems: parsed.problems,
-    notes: parsed.readings.notes,
+    notes: [...parsed.readings.notes, ...fit.notes],
     plots: result ? runPlots(result, parsed.readings.points) : null,
     n: parsed.readings.points.length,
     fit: result,

@@ -9,6 +9,8 @@ import { handLineK, markingK } from "./engine-result.ts";
 import type { MarkingRubric } from "./rubric.ts";
 import { withFileRows } from "./rows.ts";
 import { engineErrorsText, readingKindProblem, type ColumnNames } from "./range-checks.ts";
+import { concentrationFromTitre } from "../kinetics/titration.ts";
+import { readTitres, titreNote, type TitrationSetup, type ValueColumn } from "./titres.ts";
 
 export interface MarkingContext {
   reaction: { a: number; b: number; orderA: number; orderB: number };
@@ -20,6 +22,8 @@ export interface MarkingContext {
   /** per second, concentrations in mol/L */
   reference: { k: number; TrefC?: number; EaKJ?: number };
   rubric: MarkingRubric;
+  /** a titration practical's calibration: the value column holds titres in mL unless the group converted them */
+  titration?: TitrationSetup;
 }
 
 export interface RunInput {
@@ -37,6 +41,8 @@ export interface RunInput {
   excludedRows: number[];
   /** how the time and value columns are named in messages ("column B (CA)") */
   columns?: ColumnNames;
+  /** the value column as the file names it (letter, heading, unit), to tell titres from concentrations */
+  valueColumn?: ValueColumn;
 }
 
 export interface MarkOutcome {
@@ -51,12 +57,14 @@ export interface MarkOutcome {
   feedback: string[];
   /** file row of each point the engine saw (after exclusions), to name its flag rows */
   rowNumbers: number[];
+  /** how the readings were turned into the engine's measurement (titres converted, S0 and S∞ taken from ...) */
+  notes: string[];
 }
 
 export type MarkAttempt = MarkOutcome | { ok: false; errors: Array<{ path: string; message: string }> };
 
 /** The engine request for a group's readings at its bench (exclusions applied). */
-export function buildRequest(ctx: MarkingContext, run: RunInput, withReference: boolean): { request: FitRequest; rowNumbers: number[] } {
+export function buildRequest(ctx: MarkingContext, run: RunInput, withReference: boolean): { request: FitRequest; rowNumbers: number[]; notes: string[] } {
   const excluded = new Set(run.excludedRows);
   const points: [number, number][] = [];
   const rowNumbers: number[] = [];
@@ -65,7 +73,22 @@ export function buildRequest(ctx: MarkingContext, run: RunInput, withReference: 
     points.push(p);
     rowNumbers.push(run.rowNumbers[i]);
   });
-  const cs = molPerLitrePer(run.concentrationUnit);
+  const notes: string[] = [];
+  let concentrationUnit = run.concentrationUnit;
+  if (run.measured === "session" && ctx.titration && points.length) {
+    // titres in mL to the titrated species' concentration (mol/L), unless the group converted them
+    const cal = ctx.titration;
+    let first = 0;
+    points.forEach((p, i) => (p[0] < points[first][0] ? (first = i) : 0));
+    const start = cal.species === "A" ? ctx.feed.CA0 : ctx.feed.CB0;
+    const reading = readTitres([points[first][1]], run.valueColumn, cal, start, run.concentrationUnit);
+    notes.push(titreNote(reading, cal));
+    if (reading.titres) {
+      points.forEach((p, i) => (points[i] = [p[0], concentrationFromTitre(cal, p[1])]));
+      concentrationUnit = "mol/L";
+    }
+  }
+  const cs = molPerLitrePer(concentrationUnit);
   let measurement: Measurement = run.measured === "concentrationA" ? { kind: "concentrationA" } : ctx.measurement;
   if (measurement.kind === "signal" && !Number.isFinite(measurement.S0)) {
     // A signal's start value: the reading at the earliest time (the group measured it).
@@ -76,37 +99,38 @@ export function buildRequest(ctx: MarkingContext, run: RunInput, withReference: 
   const request: FitRequest = {
     reaction: ctx.reaction,
     feed: { CA0: ctx.feed.CA0 / cs, CB0: ctx.feed.CB0 / cs },
-    units: { time: run.timeUnit, concentration: run.concentrationUnit },
+    units: { time: run.timeUnit, concentration: concentrationUnit },
     measurement,
     points,
     temperatureC: ctx.temperatureC,
   };
   if (withReference) request.reference = { ...ctx.reference, tolerancePct: ctx.rubric.experiment.fullWithinPct };
-  return { request, rowNumbers };
+  return { request, rowNumbers, notes };
 }
 
-export type RangeCheck = { ok: true; request: FitRequest; rowNumbers: number[] } | { ok: false; message: string; errors: Array<{ path: string; message: string }> };
+export type RangeCheck = { ok: true; request: FitRequest; rowNumbers: number[]; notes: string[] } | { ok: false; message: string; errors: Array<{ path: string; message: string }>; notes: string[] };
 
 /**
  * The range checks (range-checks.ts): run when a file arrives, so that a file the marking job
- * would refuse is refused at once (422) with the same message, and again by the job.
+ * would refuse is refused at once (422) with the same message, and again by the job. They look at
+ * the engine's measurement, so titres are checked after conversion.
  */
 export function rangeCheck(ctx: MarkingContext, run: RunInput, withReference = false): RangeCheck {
-  const { request, rowNumbers } = buildRequest(ctx, run, withReference);
+  const { request, rowNumbers, notes } = buildRequest(ctx, run, withReference);
   const kind = readingKindProblem(request, rowNumbers, run.columns);
-  if (kind) return { ok: false, message: kind, errors: [{ path: "", message: kind }] };
+  if (kind) return { ok: false, message: kind, errors: [{ path: "", message: kind }], notes };
   const checked = validateFitRequest(request);
   if (!checked.ok) {
     const message = engineErrorsText(checked.errors, rowNumbers, run.columns);
-    return { ok: false, message, errors: [{ path: "", message }] };
+    return { ok: false, message, errors: [{ path: "", message }], notes };
   }
-  return { ok: true, request: checked.request, rowNumbers };
+  return { ok: true, request: checked.request, rowNumbers, notes };
 }
 
 export function markRun(ctx: MarkingContext, run: RunInput): MarkAttempt {
   const checked = rangeCheck(ctx, run, true);
   if (!checked.ok) return { ok: false, errors: checked.errors };
-  const rowNumbers = checked.rowNumbers;
+  const { rowNumbers, notes } = checked;
   const result = runFit(checked.request);
   const kRefAtT = result.reference!.kAtT;
   const kMarking = markingK(result);
@@ -140,14 +164,14 @@ export function markRun(ctx: MarkingContext, run: RunInput): MarkAttempt {
   }
   // flags name the file's own rows from here on (stored, shown to staff, exported)
   result.flags = withFileRows(result.flags, rowNumbers);
-  return { ok: true, result, experiment, analysis, parts, kMarking, kLine, kRefAtT, feedback, rowNumbers };
+  return { ok: true, result, experiment, analysis, parts, kMarking, kLine, kRefAtT, feedback, rowNumbers, notes };
 }
 
 /** The preview a group sees before submitting: the same fit with no reference value anywhere in it. */
-export function previewRun(ctx: MarkingContext, run: Omit<RunInput, "late" | "excludedRows" | "reportedK" | "reportedMethod">): { ok: true; result: FitResult; rowNumbers: number[] } | { ok: false; message: string; errors: Array<{ path: string; message: string }> } {
+export function previewRun(ctx: MarkingContext, run: Omit<RunInput, "late" | "excludedRows" | "reportedK" | "reportedMethod">): { ok: true; result: FitResult; rowNumbers: number[]; notes: string[] } | { ok: false; message: string; errors: Array<{ path: string; message: string }>; notes: string[] } {
   const checked = rangeCheck(ctx, { ...run, late: false, excludedRows: [], reportedK: null, reportedMethod: null });
   if (!checked.ok) return checked;
   const result = runFit(checked.request);
   result.flags = withFileRows(result.flags, checked.rowNumbers);
-  return { ok: true, result, rowNumbers: checked.rowNumbers };
+  return { ok: true, result, rowNumbers: checked.rowNumbers, notes: checked.notes };
 }

@@ -56,6 +56,10 @@ const CALIBRATION_LABELS: Record<string, [string, string]> = {
   aliquotMl: ["aliquot", "mL"],
   titratedSpecies: ["species titrated", ""],
   titrant: ["titrant is", ""],
+  titrationRatio: ["mol titrated per mol titrant", ""],
+  quenchMolL: ["quench reagent", "mol/L"],
+  quenchMl: ["quench volume", "mL"],
+  quenchRatio: ["mol titrated per mol quench reagent", ""],
 };
 
 function calibrationText(c: Record<string, unknown>) {
@@ -129,6 +133,11 @@ export default function Reactions({ loaderData, actionData }: Route.ComponentPro
                   <Field label="Path length (cm)" name="pathCm" inputMode="decimal" defaultValue={v("pathCm")} error={e("pathCm")} />
                   <Field label="Titrant (mol/L)" name="titrantMolL" inputMode="decimal" defaultValue={v("titrantMolL")} error={e("titrantMolL")} />
                   <Field label="Aliquot (mL)" name="aliquotMl" inputMode="decimal" defaultValue={v("aliquotMl")} error={e("aliquotMl")} />
+                  <SelectField label="Species titrated" name="titratedSpecies" options={["B", "A"]} labels={{ A: "A", B: "B" }} defaultValue={v("titratedSpecies") ?? "B"} error={e("titratedSpecies")} />
+                  <Field label="Mol titrated per mol of titrant" name="titrationRatio" inputMode="decimal" hint="1 for HCl against hydroxide, 2 for H2SO4" defaultValue={v("titrationRatio") ?? "1"} error={e("titrationRatio")} />
+                  <Field label="Quench reagent (mol/L)" name="quenchMolL" inputMode="decimal" hint="back-titration only: the known excess each aliquot is run into" defaultValue={v("quenchMolL")} error={e("quenchMolL")} />
+                  <Field label="Quench volume (mL)" name="quenchMl" inputMode="decimal" hint="back-titration only" defaultValue={v("quenchMl")} error={e("quenchMl")} />
+                  <Field label="Mol titrated per mol of quench reagent" name="quenchRatio" inputMode="decimal" hint="back-titration only" defaultValue={v("quenchRatio") ?? "1"} error={e("quenchRatio")} />
                 </div>
               </fieldset>
               <div className="grid grid-cols-2 gap-x-3">
