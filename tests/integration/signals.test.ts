@@ -120,3 +120,78 @@ describe("titration: titres in mL converted with the practical's calibration", (
     }
   });
 });
+
+describe("conductivity: S0 and S∞ as the group measured them", () => {
+  // Bench 2: A + B, CA0 0.02, CB0 0.035 mol/L at 30 degC. An invented cell reads 2.400 mS/cm at
+  // mixing and 0.950 mS/cm when A is used up, linear in the extent of reaction (the conductivity
+  // of a mixture is the sum of its ions' contributions; common practice, no source).
+  const S0 = 2.4;
+  const SINF = 0.95;
+  const kappa = (CA: number) => S0 + ((SINF - S0) * (p.benches[1].CA0 - CA)) / p.benches[1].CA0;
+  const rowsOf = (times: number[]) => {
+    const t = benchTruth(p, p.benches[1], times);
+    return { k: t.k, rows: t.t.map((s, i) => [s, kappa(t.CA[i]).toFixed(3)] as [number, string]) };
+  };
+  const codes = (s: Submission) => s.flags.map((f) => f.code);
+
+  beforeAll(async () => {
+    await p.system.update({ measured: "conductivity", calibration: {} });
+  });
+
+  test("first reading 45 s after mixing (clock started at mixing): S0 is fitted, not the first reading; no wild reading; full marks", async () => {
+    const { k, rows } = rowsOf(everyS(90, 2700).map((t) => t + 45));
+    const file = { bytes: csv("t (s),kappa (mS/cm)", rows), name: "late-first.csv" };
+    const pre = await previewOf(1, file);
+    expect(pre.body.notes.join(" ")).toMatch(/The first reading \(row 2\) came 45 s after mixing: the start value S0 is fitted with k, not taken from that reading\./);
+    const s = await marked(1, file, { reportedK: String(k) });
+    expect(codes(s)).not.toContain("outlier");
+    const fit = s.fit as { signalStart: { S0: number }; kSource: string };
+    expect(fit.kSource).toBe("curve");
+    expect(Math.abs(fit.signalStart.S0 - S0)).toBeLessThan(0.005);
+    expect(Math.abs(s.checks!.kMarking / k - 1)).toBeLessThan(0.02);
+    expect(s.autoMark).toBe(100);
+  });
+
+  test("a row marked ∞ is S∞ and no reading of the run: full marks", async () => {
+    const { k, rows } = rowsOf(everyS(120, 2400));
+    const file = { bytes: csv("t (s),kappa (mS/cm)", [...rows, ["∞", SINF.toFixed(3)]]), name: "infinity.csv" };
+    const s = await marked(1, file, { reportedK: String(k) });
+    expect(s.readings!.final).toEqual({ row: rows.length + 2, value: SINF, label: "∞" });
+    expect(s.problems).toEqual([]);
+    expect(s.checks!.notes!.join(" ")).toMatch(new RegExp(`Row ${rows.length + 2} \\("∞"\\) is the final reading: S∞ = 0\\.95, kept out of the straight line\\.`));
+    const fit = s.fit as { nonlinear: { Sinf?: unknown }; line: { rows: number[] }; n: number };
+    expect(fit.nonlinear.Sinf).toBeUndefined(); // known, not fitted
+    expect(fit.line.rows.length).toBeLessThanOrEqual(rows.length);
+    expect(s.autoMark).toBe(100);
+    // the same with "inf" and "final"
+    for (const label of ["inf", "final"]) {
+      const again = await marked(1, { bytes: csv("t (s),kappa (mS/cm)", [...rows, [label, SINF.toFixed(3)]]), name: `${label}.csv` }, { reportedK: String(k) });
+      expect(again.readings!.final?.label).toBe(label);
+      expect(again.autoMark).toBe(100);
+    }
+  });
+
+  test("a reading taken the next morning is S∞, kept out of the straight line: the group's own k scores in full", async () => {
+    const { k, rows } = rowsOf(everyS(120, 2400));
+    const morning: [number, string] = [18 * 3600, kappa(benchTruth(p, p.benches[1], [18 * 3600]).CA[0]).toFixed(3)];
+    const s = await marked(1, { bytes: csv("t (s),kappa (mS/cm)", [...rows, morning]), name: "next-morning.csv" }, { reportedK: String(k) });
+    expect(s.checks!.notes!.join(" ")).toMatch(/Row 23, at 64800 s, was taken long after the other readings \(the last at 2400 s\): it is read as the final reading, S∞ = 0\.95, and kept out of the straight line\./);
+    expect(s.checks!.rowNumbers).not.toContain(23);
+    expect(s.checks!.analysis.band).toBe("full");
+    expect(s.autoMark).toBe(100);
+  });
+
+  test("no final reading in the file: the practical's stored final conductivity is S∞; full marks", async () => {
+    await p.system.update({ calibration: { conductivityStart: S0, conductivityEnd: SINF } });
+    try {
+      const { k, rows } = rowsOf(everyS(120, 2400));
+      const s = await marked(1, { bytes: csv("t (s),kappa (mS/cm)", rows), name: "stored-end.csv" }, { reportedK: String(k) });
+      expect(s.checks!.notes!.join(" ")).toMatch(/No final reading in the file: S∞ = 0\.95, the final conductivity the practical stores\./);
+      const fit = s.fit as { nonlinear: { Sinf?: unknown } };
+      expect(fit.nonlinear.Sinf).toBeUndefined();
+      expect(s.autoMark).toBe(100);
+    } finally {
+      await p.system.update({ calibration: {} });
+    }
+  });
+});

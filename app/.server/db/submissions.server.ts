@@ -15,6 +15,8 @@ export interface StoredReadings {
   time: { letter: string; header: string; unit: string };
   value: { letter: string; header: string; unit: string };
   notes: string[];
+  /** a row marked as the final reading (∞, inf, final): its file row, value and time cell */
+  final?: { row: number; value: number; label: string };
 }
 
 export interface Exclusion {

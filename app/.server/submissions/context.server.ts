@@ -119,6 +119,14 @@ export function measurementOf(system: ReactionSystem): Measurement {
   }
 }
 
+/** A conductivity practical's stored start and final conductivity (only the final one is used: S∞). */
+export function conductivityOf(system: ReactionSystem): { start?: number; end?: number } | undefined {
+  if (system.measured !== "conductivity") return undefined;
+  const cal = (system.calibration ?? {}) as Record<string, unknown>;
+  const num = (x: unknown) => (typeof x === "number" && Number.isFinite(x) ? x : undefined);
+  return { start: num(cal.conductivityStart), end: num(cal.conductivityEnd) };
+}
+
 /** A titration practical's stored calibration as the marking needs it (titres in mL to mol/L). */
 export function titrationOf(system: ReactionSystem): TitrationSetup | undefined {
   if (system.measured !== "titration") return undefined;
@@ -141,6 +149,7 @@ export function titrationOf(system: ReactionSystem): TitrationSetup | undefined 
 export function markingContext(p: PracticalOfGroup): MarkingContext {
   return {
     titration: titrationOf(p.system),
+    conductivity: conductivityOf(p.system),
     reaction: { a: p.system.coeffA, b: p.system.coeffB, orderA: p.system.orderA, orderB: p.system.orderB },
     feed: { CA0: p.bench.CA0, CB0: p.bench.CB0 },
     temperatureC: p.bench.temperatureC,

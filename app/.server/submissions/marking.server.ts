@@ -30,6 +30,7 @@ export async function computeMark(s: Submission, transaction?: Transaction): Pro
     excludedRows: (s.excluded ?? []).map((e) => e.row),
     columns: { time: columnText(s.readings.time), value: columnText(s.readings.value) },
     valueColumn: s.readings.value,
+    final: s.readings.final,
   };
   return compute("mark", { ctx: markingContext(practical), run });
 }

@@ -62,7 +62,7 @@ export async function parseUpload(file: UploadedFile, choices: UploadChoices, me
     const col = (c: typeof ex.time) => ({ letter: c.letter, header: c.header, unit: c.unit });
     return {
       ok: true,
-      readings: { points: ex.points, rowNumbers: ex.rowNumbers, time: col(ex.time), value: col(ex.value), notes: ex.notes },
+      readings: { points: ex.points, rowNumbers: ex.rowNumbers, time: col(ex.time), value: col(ex.value), notes: ex.notes, ...(ex.final ? { final: ex.final } : {}) },
       problems: ex.problems,
       timeUnit,
       concentrationUnit,
@@ -85,6 +85,7 @@ export function runOf(parsed: ParsedUpload, choices: UploadChoices) {
     measured: choices.measured,
     columns: { time: name(parsed.readings.time), value: name(parsed.readings.value) },
     valueColumn: parsed.readings.value,
+    final: parsed.readings.final,
   };
 }
 

@@ -43,6 +43,11 @@ export interface FitRequest {
     lineThroughOrigin?: boolean;
     /** also fit the other supported rate laws and report which describes the data best (default true) */
     compareOrders?: boolean;
+    /**
+     * a signal's S0 is a parameter of the curve fit, not `measurement.S0` (which only has to be a
+     * number): the clock started at mixing and the first reading came later (default false)
+     */
+    fitSignalStart?: boolean;
   };
 }
 
@@ -307,9 +312,9 @@ export function validateFitRequest(json: unknown): ValidationResult {
   }
 
   if (root.options !== undefined) {
-    const options = c.object(root.options, "options", ["lineThroughOrigin", "compareOrders", "noise"]);
+    const options = c.object(root.options, "options", ["lineThroughOrigin", "compareOrders", "noise", "fitSignalStart"]);
     if (options) {
-      for (const key of ["lineThroughOrigin", "compareOrders"]) {
+      for (const key of ["lineThroughOrigin", "compareOrders", "fitSignalStart"]) {
         if (options[key] !== undefined && typeof options[key] !== "boolean") c.add(join("options", key), "must be true or false");
       }
       if (options.noise !== undefined && !(NOISE_CHOICES as readonly unknown[]).includes(options.noise)) {

@@ -43,6 +43,7 @@ import { runsTest, confidenceInterval } from "./statistics.ts";
 import jStat from "jstat";
 import { celsiusToKelvin, molPerLitrePer, secondsPer, type ConcentrationUnit, type TimeUnit } from "./units.ts";
 import type { FitRequest } from "./request.ts";
+import { fitSignalStart } from "./signalStart.ts";
 
 export type { LawComparison, OrderComparison };
 
@@ -146,6 +147,8 @@ export interface FitResult {
     residuals: number[];
   };
   orderComparison?: OrderComparison;
+  /** a signal's start value fitted (options.fitSignalStart: the first reading came after mixing), signal units */
+  signalStart?: { S0: number; stdErr: number; ci95: [number, number] };
   limitingReagent: "A" | "B";
   /** long-time CA set by stoichiometry, request's concentration unit */
   finalCA: number;
@@ -157,6 +160,7 @@ export interface FitResult {
 }
 
 export function runFit(request: FitRequest): FitResult {
+  if (request.options?.fitSignalStart && request.measurement.kind === "signal") return runWithFittedStart(request);
   const data = toSI(request);
   const { feed, measurement } = data;
   const kind = measurement.kind;
@@ -773,6 +777,29 @@ function pick(data: RunData, rows: number[]): RunData {
 }
 
 /** Reference k carried to the run temperature, and how far the fitted k is from it. */
+/**
+ * A signal run whose first reading came after mixing: S0 from the curve fit (signalStart.ts), then
+ * the whole fit with that S0, marked with the curve fit and k's interval from the joint covariance
+ * of (k, S0[, Sinf]). Readings weigh alike (absolute noise), as in the search for S0.
+ */
+function runWithFittedStart(request: FitRequest): FitResult {
+  const { fitSignalStart: _drop, ...options } = request.options!;
+  const inner: FitRequest = { ...request, options: { ...options, noise: "absolute" } };
+  const start = fitSignalStart(inner);
+  if (!start) return runFit(inner);
+  const result = runFit({ ...inner, measurement: { ...(request.measurement as { kind: "signal"; S0: number; Sinf?: number }), S0: start.S0 } });
+  const k = result.nonlinear.k;
+  result.signalStart = { S0: start.S0, stdErr: start.stdErr, ci95: start.ci95 };
+  result.nonlinear.kStdErr = start.kStdErr;
+  result.nonlinear.kCI95 = start.kCI95;
+  result.k = k;
+  result.kStdErr = start.kStdErr;
+  result.kCI95 = start.kCI95;
+  result.kSource = "curve";
+  if (request.reference) result.reference = referenceCheck(request, k);
+  return result;
+}
+
 function referenceCheck(request: FitRequest, k: number): NonNullable<FitResult["reference"]> {
   const ref = request.reference!;
   const tolerancePct = ref.tolerancePct ?? DEFAULT_TOLERANCE_PCT;

@@ -10,6 +10,7 @@ import type { MarkingRubric } from "./rubric.ts";
 import { withFileRows } from "./rows.ts";
 import { engineErrorsText, readingKindProblem, type ColumnNames } from "./range-checks.ts";
 import { concentrationFromTitre } from "../kinetics/titration.ts";
+import { signalPlan, type FinalRow } from "./conductivity.ts";
 import { readTitres, titreNote, type TitrationSetup, type ValueColumn } from "./titres.ts";
 
 export interface MarkingContext {
@@ -24,6 +25,8 @@ export interface MarkingContext {
   rubric: MarkingRubric;
   /** a titration practical's calibration: the value column holds titres in mL unless the group converted them */
   titration?: TitrationSetup;
+  /** a conductivity practical's stored conductivities (the final one is S∞ when the file has none) */
+  conductivity?: { start?: number; end?: number };
 }
 
 export interface RunInput {
@@ -43,6 +46,8 @@ export interface RunInput {
   columns?: ColumnNames;
   /** the value column as the file names it (letter, heading, unit), to tell titres from concentrations */
   valueColumn?: ValueColumn;
+  /** a row marked as the final reading (∞, inf, final) */
+  final?: FinalRow;
 }
 
 export interface MarkOutcome {
@@ -90,22 +95,33 @@ export function buildRequest(ctx: MarkingContext, run: RunInput, withReference: 
   }
   const cs = molPerLitrePer(concentrationUnit);
   let measurement: Measurement = run.measured === "concentrationA" ? { kind: "concentrationA" } : ctx.measurement;
+  let fitSignalStart = false;
+  let pts = points;
+  let rows = rowNumbers;
   if (measurement.kind === "signal" && !Number.isFinite(measurement.S0)) {
-    // A signal's start value: the reading at the earliest time (the group measured it).
-    let first = 0;
-    points.forEach((p, i) => (p[0] < points[first][0] ? (first = i) : 0));
-    measurement = { ...measurement, S0: points[first]?.[1] ?? NaN };
+    // S0 and S∞ as the group measured them (conductivity.ts): a final reading is S∞ and no
+    // reading of the run; S0 is fitted when the first reading came after mixing
+    const final = run.final && !excluded.has(run.final.row) ? run.final : undefined;
+    const plan = signalPlan(points, rowNumbers, final, measurement.Sinf ?? ctx.conductivity?.end, run.timeUnit);
+    pts = plan.points;
+    rows = plan.rowNumbers;
+    fitSignalStart = plan.fitStart;
+    notes.push(...plan.notes);
+    measurement = { kind: "signal", S0: plan.S0, ...(plan.Sinf !== undefined ? { Sinf: plan.Sinf } : {}) };
+  } else if (run.final) {
+    notes.push(`Row ${run.final.row} ("${run.final.label}") was not used: a final reading is only read for a conductivity practical.`);
   }
   const request: FitRequest = {
     reaction: ctx.reaction,
     feed: { CA0: ctx.feed.CA0 / cs, CB0: ctx.feed.CB0 / cs },
     units: { time: run.timeUnit, concentration: concentrationUnit },
     measurement,
-    points,
+    points: pts,
     temperatureC: ctx.temperatureC,
   };
+  if (fitSignalStart) request.options = { fitSignalStart: true };
   if (withReference) request.reference = { ...ctx.reference, tolerancePct: ctx.rubric.experiment.fullWithinPct };
-  return { request, rowNumbers, notes };
+  return { request, rowNumbers: rows, notes };
 }
 
 export type RangeCheck = { ok: true; request: FitRequest; rowNumbers: number[]; notes: string[] } | { ok: false; message: string; errors: Array<{ path: string; message: string }>; notes: string[] };

@@ -38,7 +38,20 @@ export interface Extracted {
   rowNumbers: number[];
   problems: ReadingProblem[];
   notes: string[];
+  /** a row whose time says it is the final (infinity) reading: ∞, inf, final, end */
+  final?: FinalReading;
 }
+
+export interface FinalReading {
+  /** file row */
+  row: number;
+  value: number;
+  /** the time cell as written */
+  label: string;
+}
+
+/** A time cell that marks the final reading, taken when the reaction is over (common practice, no source). */
+export const FINAL_TIME = /^(∞|inf|infinity|t ?∞|t_?inf|final|end|overnight|next (day|morning))$/i;
 
 const TIME_NAMES = /^(t|time|elapsed( time)?|zeit|tiempo|temps|tid|czas|clock)$/i;
 
@@ -99,6 +112,7 @@ export function extractPoints(
   const points: [number, number][] = [];
   const rowNumbers: number[] = [];
   const problems: ReadingProblem[] = [];
+  let final: FinalReading | undefined;
   const name = (c: ColumnInfo) => (c.header ? `${c.letter} (${c.header})` : c.letter);
   for (let i = shape.firstDataRow; i < table.rows.length; i++) {
     const row = table.rows[i];
@@ -107,6 +121,11 @@ export function extractPoints(
     const vCell = row.cells[value.index] ?? null;
     const t = cellNumber(tCell, table.decimalComma);
     const v = cellNumber(vCell, table.decimalComma);
+    const label = typeof tCell === "string" ? tCell.trim() : "";
+    if (t === null && v !== null && !final && FINAL_TIME.test(label)) {
+      final = { row: row.rowNumber, value: v, label };
+      continue;
+    }
     if (t === null) problems.push({ row: row.rowNumber, column: name(time), message: describeBad(tCell, "time", table.decimalComma) });
     if (v === null) problems.push({ row: row.rowNumber, column: name(value), message: describeBad(vCell, "value", table.decimalComma) });
     if (t !== null && v !== null) {
@@ -125,7 +144,7 @@ export function extractPoints(
     const units = [time, value].map((c) => `${c.letter}${c.header ? ` (${c.header})` : ""}: ${c.unit || "none"}`).join(", ");
     notes.push(`Row ${table.rows[shape.unitsRow].rowNumber} holds the units, not readings; they were applied (${units}).`);
   }
-  return { shape, time, value, points, rowNumbers, problems, notes };
+  return { shape, time, value, points, rowNumbers, problems, notes, ...(final ? { final } : {}) };
 }
 
 function describeBad(cell: unknown, what: string, decimalComma: boolean): string {
