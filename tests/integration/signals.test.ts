@@ -12,6 +12,7 @@ import { closeSequelize } from "~/.server/db/sequelize.server";
 import { call } from "./helpers";
 import { makePractical, uploadRequest, type Practical } from "./practical-fixture";
 import { benchTruth, everyS, sig4 } from "./bench-truth";
+import { normalSource } from "~/lib/kinetics/synthetic";
 
 let p: Practical;
 let cookies: string[];
@@ -193,5 +194,34 @@ describe("conductivity: S0 and S∞ as the group measured them", () => {
     } finally {
       await p.system.update({ calibration: {} });
     }
+  });
+});
+
+describe("the analysis check compares like with like", () => {
+  // Bench 1 over 40 min (97.5 % of A reacted), CA read with a seeded noise of 0.3 mmol/L (1.5 % of
+  // CA0): on this draw the unweighted straight line is 32 % above the truth while a curve fit is
+  // within 1 % of it (the transform magnifies late readings' noise).
+  const noisy = () => {
+    const t = benchTruth(p, p.benches[0], everyS(120, 2400));
+    const rnd = normalSource(9);
+    return { k: t.k, rows: t.t.map((s, i) => [s, sig4(t.CA[i] + 0.0003 * rnd())] as [number, string]) };
+  };
+
+  test("a k the group made with a curve fit is judged against the engine's curve fit: full marks; a straight-line k against the straight line", async () => {
+    const { k, rows } = noisy();
+    const file = { bytes: csv("t (s),CA (mol/L)", rows), name: "curve-fit.csv" };
+    const s = await marked(0, file, { measured: "concentrationA", reportedK: String(k), reportedMethod: "curve-fit" });
+    const fit = s.fit as { line: { k: number }; nonlinear: { k: number } };
+    // the precondition that makes this a test: the hand line is far from the truth, the curve is not
+    expect(Math.abs(fit.line.k / k - 1)).toBeGreaterThan(0.25);
+    expect(Math.abs(fit.nonlinear.k / k - 1)).toBeLessThan(0.02);
+    expect(s.checks!.analysisAgainst).toBe("curve");
+    expect(s.checks!.analysis.band).toBe("full");
+    expect(s.feedback.join(" ")).toMatch(/matches a curve fitted to your own readings/);
+    expect(s.autoMark).toBe(100);
+    // the group's own straight line copied as its k, named as a straight line: judged against that line
+    const line = await marked(0, file, { measured: "concentrationA", reportedK: String(fit.line.k), reportedMethod: "ln[(CB*CA0)/(CB0*CA)]" });
+    expect(line.checks!.analysisAgainst).toBe("line");
+    expect(line.checks!.analysis.band).toBe("full");
   });
 });

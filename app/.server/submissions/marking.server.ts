@@ -58,6 +58,8 @@ export function markColumns(attempt: Awaited<ReturnType<typeof computeMark>>) {
       analysis: attempt.analysis,
       rowNumbers: attempt.rowNumbers.length > 2000 ? [] : attempt.rowNumbers,
       notes: attempt.notes,
+      analysisAgainst: attempt.analysisAgainst,
+      kAnalysis: attempt.kAnalysis,
     },
     experimentPart: attempt.parts.experimentPart,
     analysisPart: attempt.parts.analysisPart,

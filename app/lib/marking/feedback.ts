@@ -75,6 +75,8 @@ export interface FeedbackInput {
   excludedRows: readonly number[];
   /** the readings' values in the time order of the file (for the constant-readings check) */
   values?: readonly number[];
+  /** what the reported k was judged against (default the straight line) */
+  analysisAgainst?: "line" | "curve";
 }
 
 /** Flags that a unit slip or feed mismatch explains by itself: one cause, one line. */
@@ -131,7 +133,11 @@ export function feedbackLines(input: FeedbackInput): string[] {
     lines.push(`For your bench's feed the straight line is ${methodText(input.expectedForm)}; you used ${methodText(input.reportedMethod)}, so your k is not the slope this rate law gives.`);
   }
   if (input.reportedK === null) lines.push("You did not report a rate constant of your own, so the analysis check scored nothing.");
-  else if (input.analysis.band === "full") lines.push("Your reported k matches the straight line through your own readings.");
+  else if (input.analysisAgainst === "curve") {
+    lines.push(input.analysis.band === "full"
+      ? "Your reported k matches a curve fitted to your own readings, as you said you made it."
+      : `Your reported k differs from a curve fitted to your own readings (the method you named) by ${Math.abs(input.analysis.deviationPct).toFixed(1)} %: check your fit.`);
+  } else if (input.analysis.band === "full") lines.push("Your reported k matches the straight line through your own readings.");
   else lines.push(unitFactorHint(input.analysis, input.expectedForm) ?? `Your reported k differs from the straight line through your own readings by ${Math.abs(input.analysis.deviationPct).toFixed(1)} %: check the slope and the plot you used.`);
   lines.push(
     input.experiment.band === "full"

@@ -62,6 +62,9 @@ export interface MarkOutcome {
   feedback: string[];
   /** file row of each point the engine saw (after exclusions), to name its flag rows */
   rowNumbers: number[];
+  /** what the group's k was judged against, and that k */
+  analysisAgainst: "line" | "curve";
+  kAnalysis: number;
   /** how the readings were turned into the engine's measurement (titres converted, S0 and S∞ taken from ...) */
   notes: string[];
 }
@@ -152,7 +155,11 @@ export function markRun(ctx: MarkingContext, run: RunInput): MarkAttempt {
   const kMarking = markingK(result);
   const kLine = handLineK(result);
   const experiment = experimentCheck(kMarking, kRefAtT, ctx.rubric);
-  const analysis = analysisCheck(run.reportedK, kLine, ctx.rubric);
+  // like with like: a k the group says came from a curve fit is judged against the engine's curve
+  // fit; any other against the unweighted line of the textbook form for the feed
+  const analysisAgainst: "line" | "curve" = run.reportedMethod === "curve-fit" && Number.isFinite(result.nonlinear.k) ? "curve" : "line";
+  const kAnalysis = analysisAgainst === "curve" ? result.nonlinear.k : kLine;
+  const analysis = analysisCheck(run.reportedK, kAnalysis, ctx.rubric);
   const parts = combine(experiment, analysis, ctx.rubric, run.late);
   const law = lawFromOrders(ctx.reaction.orderA, ctx.reaction.orderB)!;
   const nu = ctx.reaction.a > 0 ? ctx.reaction.b / ctx.reaction.a : 1;
@@ -168,6 +175,7 @@ export function markRun(ctx: MarkingContext, run: RunInput): MarkAttempt {
     late: run.late,
     excludedRows: run.excludedRows,
     values: [...checked.request.points].sort((a, b) => a[0] - b[0]).map((p) => p[1]),
+    analysisAgainst,
   });
   // The group's own method is judged here, not by the engine: a flag so reviewers see it in the queue.
   const method = run.reportedMethod;
@@ -180,7 +188,7 @@ export function markRun(ctx: MarkingContext, run: RunInput): MarkAttempt {
   }
   // flags name the file's own rows from here on (stored, shown to staff, exported)
   result.flags = withFileRows(result.flags, rowNumbers);
-  return { ok: true, result, experiment, analysis, parts, kMarking, kLine, kRefAtT, feedback, rowNumbers, notes };
+  return { ok: true, result, experiment, analysis, parts, kMarking, kLine, kRefAtT, feedback, rowNumbers, notes, analysisAgainst, kAnalysis };
 }
 
 /** The preview a group sees before submitting: the same fit with no reference value anywhere in it. */
