@@ -24,6 +24,7 @@ import * as m0040 from "./migrations/0040-sso-identities";
 import * as m0046 from "./migrations/0046-course-time-zone";
 import * as m0047 from "./migrations/0047-worker-heartbeats";
 import * as m0048 from "./migrations/0048-version-that-counts";
+import * as m0049 from "./migrations/0049-submission-corrections";
 import * as m0050 from "./migrations/0050-lti-launch";
 import * as m0051 from "./migrations/0051-course-invitations";
 import * as m0056 from "./migrations/0056-lti-grades";
@@ -45,6 +46,7 @@ const migrations: Migration[] = [
   { name: "0046-course-time-zone", ...m0046 },
   { name: "0047-worker-heartbeats", ...m0047 },
   { name: "0048-version-that-counts", ...m0048 },
+  { name: "0049-submission-corrections", ...m0049 },
   { name: "0050-lti-launch", ...m0050 },
   { name: "0051-course-invitations", ...m0051 },
   { name: "0056-lti-grades", ...m0056 },

@@ -3,6 +3,7 @@ import { DataTypes, Model, type CreationOptional, type InferAttributes, type Inf
 import { getSequelize } from "./sequelize.server";
 import { User } from "./models.server";
 import type { ReadingProblem } from "~/lib/readings/extract";
+import type { Correction } from "~/lib/marking/corrections";
 
 export const SUBMISSION_STATUSES = ["queued", "marked", "refused", "failed"] as const;
 export type SubmissionStatus = (typeof SUBMISSION_STATUSES)[number];
@@ -39,6 +40,8 @@ export interface StoredChecks {
   /** what the group's k was judged against: its straight line, or the engine's curve fit */
   analysisAgainst?: "line" | "curve";
   kAnalysis?: number;
+  /** what the practical's policy took off for corrected slips (absent when none) */
+  correction?: { count: number; pctEach: number; marks: number } | null;
 }
 
 export class Submission extends Model<InferAttributes<Submission>, InferCreationAttributes<Submission>> {
@@ -71,6 +74,8 @@ export class Submission extends Model<InferAttributes<Submission>, InferCreation
   declare overrideMark: CreationOptional<number | null>;
   declare overrideReason: CreationOptional<string | null>;
   declare excluded: CreationOptional<Exclusion[]>;
+  /** a reviewer's stated corrections (migration 0049), applied and priced at every re-mark */
+  declare corrections: CreationOptional<Correction[]>;
   declare markedAt: CreationOptional<Date | null>;
   declare markingRuns: CreationOptional<number>;
   declare markingError: CreationOptional<string | null>;
@@ -137,6 +142,7 @@ Submission.init(
     overrideMark: { type: DataTypes.DOUBLE, allowNull: true },
     overrideReason: { type: DataTypes.TEXT, allowNull: true },
     excluded: json([]),
+    corrections: json([]),
     markedAt: { type: DataTypes.DATE, allowNull: true },
     markingRuns: { type: DataTypes.INTEGER, allowNull: false, defaultValue: 0 },
     markingError: { type: DataTypes.TEXT, allowNull: true },

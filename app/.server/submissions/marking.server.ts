@@ -4,15 +4,22 @@
 import type { Transaction } from "sequelize";
 import { getSequelize } from "../db/sequelize.server";
 import { Submission } from "../db/submissions.server";
-import type { MarkAttempt, RunInput } from "~/lib/marking/mark-run";
+import type { MarkAttempt, MarkOutcome, RunInput } from "~/lib/marking/mark-run";
+import { withCorrections, type CorrectionCost } from "~/lib/marking/corrections";
 import { compute } from "../compute/pool.server";
 import type { ConcentrationUnit, TimeUnit } from "~/lib/kinetics/units";
 import { markingContext, practicalOfSubmission } from "./context.server";
 import { trimFit } from "./service.server";
 import { columnText } from "~/lib/readings/table";
 
-/** The engine and rubric on a submission's stored readings (with its exclusions). */
-export async function computeMark(s: Submission, transaction?: Transaction): Promise<MarkAttempt | { ok: false; errors: Array<{ path: string; message: string }> }> {
+type Attempt = (MarkOutcome & { correction?: CorrectionCost | null }) | Exclude<MarkAttempt, MarkOutcome>;
+
+/**
+ * The engine and rubric on a submission's stored readings (with its exclusions). A reviewer's
+ * corrections are already in the stored fields (units, readings, exclusions); here they are
+ * priced by the practical's policy and told in the feedback, at every re-mark.
+ */
+export async function computeMark(s: Submission, transaction?: Transaction): Promise<Attempt> {
   const practical = await practicalOfSubmission(s.sessionId, s.benchId, s.groupId);
   if (!practical) return { ok: false, errors: [{ path: "bench", message: "the group's bench in this practical no longer exists" }] };
   if (!s.readings) return { ok: false, errors: [{ path: "file", message: "no readings were read from the file" }] };
@@ -32,7 +39,9 @@ export async function computeMark(s: Submission, transaction?: Transaction): Pro
     valueColumn: s.readings.value,
     final: s.readings.final,
   };
-  return compute("mark", { ctx: markingContext(practical), run });
+  const ctx = markingContext(practical);
+  const attempt = await compute("mark", { ctx, run });
+  return attempt.ok ? withCorrections(attempt, s.corrections ?? [], ctx.rubric) : attempt;
 }
 
 /** The columns a mark attempt sets on the submission. */
@@ -60,6 +69,7 @@ export function markColumns(attempt: Awaited<ReturnType<typeof computeMark>>) {
       notes: attempt.notes,
       analysisAgainst: attempt.analysisAgainst,
       kAnalysis: attempt.kAnalysis,
+      ...("correction" in attempt && attempt.correction ? { correction: attempt.correction } : {}),
     },
     experimentPart: attempt.parts.experimentPart,
     analysisPart: attempt.parts.analysisPart,

@@ -11,9 +11,13 @@ import { Submission, SubmissionComment, effectiveMark, type Exclusion } from "..
 import { recordAudit } from "../audit.server";
 import { queueScoresToPlatform } from "../lti/grades.server";
 import { queueMail } from "../mail/outbox.server";
-import { benchesOfSession } from "./context.server";
+import { benchesOfSession, markingContext, practicalOfSubmission } from "./context.server";
 import { computeMark, markColumns } from "./marking.server";
 import { flaggedWords, type QueueStop } from "~/lib/marking/queue";
+import { CORRECTION_KINDS, correctionText, type Correction, type CorrectionKind } from "~/lib/marking/corrections";
+import { CONCENTRATION_UNITS, TIME_UNITS } from "~/lib/kinetics/units";
+import { SubmissionFile } from "../db/submissions.server";
+import { compute } from "../compute/pool.server";
 
 export type QueueTab = "to-check" | "flagged" | "checked";
 
@@ -154,14 +158,103 @@ export async function chooseCountingVersion(actor: User, submission: Submission,
   });
 }
 
+export interface CorrectionInput {
+  kind: string;
+  /** the unit, the file row, or "time letter,value letter" for columns (ignored for a swap) */
+  to: string;
+  reason: string;
+}
+
+/**
+ * Re-marks a version with a reviewer's stated correction: the corrected unit, columns (read again
+ * from the original file, which stays as it was) or reading left out goes into the stored fields,
+ * the correction is kept with the version, the engine marks it again, the practical's policy
+ * prices it, the group's feedback says so, and the audit log has before and after.
+ */
+export async function correctSubmission(actor: User, submission: Submission, input: CorrectionInput): Promise<Correction> {
+  const kind = input.kind as CorrectionKind;
+  if (!(CORRECTION_KINDS as readonly string[]).includes(kind)) problem(`Choose what to correct: ${CORRECTION_KINDS.join(", ")}.`);
+  const why = input.reason.trim();
+  if (!why) problem("Say why (the group reads it in their feedback, and it is kept in the audit log).");
+  if (submission.status !== "marked" && submission.status !== "failed") problem("Only a version that was marked (or that marking refused) can be corrected.", 409);
+  if (!submission.readings) problem("This version has no readings to correct.", 409);
+  const to = input.to.trim();
+  const readings = submission.readings;
+  const changes: Partial<Pick<Submission, "timeUnit" | "concentrationUnit" | "readings" | "timeColumn" | "valueColumn" | "excluded">> = {};
+  let from = "";
+  let toText = to;
+  switch (kind) {
+    case "concentration-unit":
+      if (!(CONCENTRATION_UNITS as readonly string[]).includes(to)) problem(`The concentration unit must be one of ${CONCENTRATION_UNITS.join(", ")}.`);
+      if (to === submission.concentrationUnit) problem(`The readings are already taken as ${to}.`, 409);
+      from = submission.concentrationUnit;
+      changes.concentrationUnit = to;
+      break;
+    case "time-unit":
+      if (!(TIME_UNITS as readonly string[]).includes(to)) problem(`The time unit must be one of ${TIME_UNITS.join(", ")}.`);
+      if (to === submission.timeUnit) problem(`The times are already taken as ${to}.`, 409);
+      from = submission.timeUnit;
+      changes.timeUnit = to;
+      break;
+    case "swapped-columns":
+    case "columns": {
+      const letters = kind === "swapped-columns" ? [readings.value.letter, readings.time.letter] : to.toUpperCase().split(/[\s,;]+/).filter(Boolean);
+      if (letters.length !== 2 || letters.some((l) => !/^[A-Z]{1,3}$/.test(l))) problem("Give the time column and the value column as two column letters, e.g. \"B, C\".");
+      if (letters[0] === letters[1]) problem("The time and value columns must be two different columns.");
+      if (letters[0] === readings.time.letter && letters[1] === readings.value.letter) problem(`Column ${letters[0]} is already the time and ${letters[1]} the value.`, 409);
+      const file = await SubmissionFile.findByPk(submission.id);
+      if (!file) problem("The original file of this version is missing, so its columns cannot be read again.", 409);
+      const practical = await practicalOfSubmission(submission.sessionId, submission.benchId, submission.groupId);
+      if (!practical) problem("The group's bench in this practical no longer exists, so the file cannot be read again.", 409);
+      // read and range-checked in the compute pool as an upload is, so a refusal reads the same
+      const parsed = await compute("parse", {
+        file: { bytes: new Uint8Array(file.bytes), name: file.originalName, type: file.contentType, size: file.size },
+        choices: { timeColumn: letters[0], valueColumn: letters[1], measured: submission.measured === "concentrationA" ? "concentrationA" : "session", timeUnit: submission.timeUnit as never, concentrationUnit: submission.concentrationUnit as never, reportedK: null, reportedMethod: null, sessionId: null, startTime: null },
+        measured: practical.system.measured,
+        ctx: markingContext(practical),
+      });
+      if (!parsed.ok) problem(`With time in column ${letters[0]} and the value in column ${letters[1]}, the file cannot be read: ${parsed.message}`);
+      from = `${readings.time.letter}, ${readings.value.letter}`;
+      toText = `${letters[0]}, ${letters[1]}`;
+      changes.readings = parsed.readings;
+      changes.timeColumn = letters[0];
+      changes.valueColumn = letters[1];
+      // rows left out stay left out where the file still has them
+      changes.excluded = submission.excluded.filter((e) => parsed.readings.rowNumbers.includes(e.row));
+      break;
+    }
+    case "reading-left-out": {
+      const row = Number(to);
+      if (!Number.isInteger(row) || !readings.rowNumbers.includes(row)) problem(`Row ${to || "?"} is not one of this file's readings; give its row number in the file.`);
+      if (submission.excluded.some((e) => e.row === row)) problem(`Row ${row} is already left out.`, 409);
+      from = String(row);
+      toText = String(row);
+      changes.excluded = [...submission.excluded, { row, reason: why.slice(0, 500), byId: actor.id, at: new Date().toISOString() }];
+      break;
+    }
+  }
+  const correction: Correction = { kind, from, to: toText, reason: why.slice(0, 500), byId: actor.id, at: new Date().toISOString() };
+  await getSequelize().transaction(async (transaction) => {
+    const before = { autoMark: submission.autoMark, status: submission.status, timeUnit: submission.timeUnit, concentrationUnit: submission.concentrationUnit, columns: `${readings.time.letter}, ${readings.value.letter}`, excluded: submission.excluded.map((e) => e.row), corrections: submission.corrections };
+    Object.assign(submission, changes);
+    submission.corrections = [...(submission.corrections ?? []), correction];
+    const cols = markColumns(await computeMark(submission));
+    await submission.update({ ...changes, corrections: submission.corrections, ...cols, markedAt: new Date() }, { transaction });
+    await recordAudit({ actorId: actor.id, action: "submission.corrected", entityType: "submission", entityId: submission.id, before, after: { correction, text: correctionText(correction), autoMark: cols.autoMark, status: cols.status, cost: (cols.checks as { correction?: unknown } | null)?.correction ?? null } }, transaction);
+  });
+  return correction;
+}
+
 /** Puts a left-out reading back; the mark is recomputed. */
 export async function includeReading(actor: User, submission: Submission, row: number) {
   if (!submission.excluded.some((e) => e.row === row)) problem(`Row ${row} is not left out.`, 409);
   await getSequelize().transaction(async (transaction) => {
     const before = { excluded: submission.excluded, autoMark: submission.autoMark };
     submission.excluded = submission.excluded.filter((e) => e.row !== row);
+    // a correction that left this reading out no longer holds (nor costs)
+    submission.corrections = (submission.corrections ?? []).filter((c) => !(c.kind === "reading-left-out" && c.to === String(row)));
     const cols = markColumns(await computeMark(submission));
-    await submission.update({ ...cols, excluded: submission.excluded, markedAt: new Date() }, { transaction });
+    await submission.update({ ...cols, excluded: submission.excluded, corrections: submission.corrections, markedAt: new Date() }, { transaction });
     await recordAudit({ actorId: actor.id, action: "submission.reading-included", entityType: "submission", entityId: submission.id, before, after: { excluded: submission.excluded, autoMark: cols.autoMark } }, transaction);
   });
   await markChangedAfterCommit(submission);

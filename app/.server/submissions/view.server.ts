@@ -55,6 +55,8 @@ export interface SubmissionView {
   /** why marking failed (staff: as stored; the group: in its words) */
   markingError?: string | null;
   excluded?: unknown;
+  /** staff only: a reviewer's stated corrections (the group reads them in its feedback) */
+  corrections?: Array<{ kind: string; from: string; to: string; reason: string; at: string }>;
   reviewState?: string;
   markingRuns?: number;
   /** staff only: a reviewer chose this version to count in the gradebook */
@@ -109,6 +111,7 @@ function viewOf(s: Submission, viewer: Viewer, release: { releasedAt: Date | nul
       overrideReason: s.overrideReason,
       markingError: s.markingError,
       excluded: s.excluded,
+      corrections: (s.corrections ?? []).map((c) => ({ kind: c.kind, from: c.from, to: c.to, reason: c.reason, at: c.at })),
       reviewState: s.reviewState,
       markingRuns: s.markingRuns,
       countsChosen: s.countsChosen,

@@ -9,7 +9,7 @@ import { readForm } from "~/.server/body.server";
 import { whileDatabaseUp } from "~/.server/db/unavailable.server";
 import { requireSessionStaff } from "~/.server/submissions/context.server";
 import { loadSubmission } from "~/.server/submissions/access.server";
-import { addComment, excludeReading, includeReading, chooseCountingVersion, markAgain, overrideMark, queueStops, queueTabOf, releaseInfo, reviewQueue, setReviewState } from "~/.server/submissions/review.server";
+import { addComment, chooseCountingVersion, correctSubmission, excludeReading, includeReading, markAgain, overrideMark, queueStops, queueTabOf, releaseInfo, reviewQueue, setReviewState } from "~/.server/submissions/review.server";
 import { neighbours } from "~/lib/marking/queue";
 import { withFileRows, fileRowsText } from "~/lib/marking/rows";
 import { flagTitle } from "~/lib/marking/flag-titles";
@@ -29,6 +29,8 @@ import { FormMessage } from "~/components/form";
 import { ProblemList, RunPlotsView, StatusBadge } from "~/components/run-plots";
 import { modelText, sig, unitText, withInterval } from "~/lib/format";
 import { methodText } from "~/lib/marking/feedback";
+import { CORRECTION_KINDS, CORRECTION_LABELS, correctionText, type CorrectionKind } from "~/lib/marking/corrections";
+import { CONCENTRATION_UNITS, TIME_UNITS } from "~/lib/kinetics/units";
 import { data } from "react-router";
 import { trailFor } from "~/lib/place";
 import { groupLabel, upperFirst } from "~/lib/natural-order";
@@ -57,6 +59,7 @@ export async function loader({ request, params }: Route.LoaderArgs) {
     return {
       around: neighbours(queueStops(queue.rows), submission.id),
       outOf: marksOutOf(rubricFrom(session.rubric)),
+      correctionCostPct: rubricFrom(session.rubric).correctionCostPct,
       flags: withFileRows(view.flags, fittedRowNumbers(submission)),
       feedRatio: bench ? feedRatio(bench.CA0, bench.CB0, nu) : null,
       session: { id: session.id, title: session.title },
@@ -98,6 +101,12 @@ export async function action({ request, params }: Route.ActionArgs) {
           return { ok: `Mark set to ${mark} %.` };
         }
         case "clear-override": await overrideMark(user, submission, null, text("reason") || "override removed"); return { ok: "The automatic mark applies again." };
+        case "correct": {
+          const kind = text("kind");
+          const to = { "concentration-unit": text("toConcentration"), "time-unit": text("toTime"), columns: text("toColumns"), "reading-left-out": text("toRow"), "swapped-columns": "" }[kind] ?? "";
+          const c = await correctSubmission(user, submission, { kind, to, reason: text("reason") });
+          return { ok: `Corrected (${correctionText(c)}) and marked again by the engine; the group's feedback says so.` };
+        }
         case "comment": await addComment(user, submission, text("body")); return { ok: "Comment added." };
         case "count-this": await chooseCountingVersion(user, submission, true); return { ok: `Version ${submission.version} now counts in the gradebook.` };
         case "count-latest": await chooseCountingVersion(user, submission, false); return { ok: "The latest marked version counts again." };
@@ -126,6 +135,7 @@ export default function ReviewSubmission({ loaderData, actionData }: Route.Compo
   const fit = view.fit;
   const checks = (view.checks ?? null) as unknown as { kMarking: number; kLine: number; kRefAtT: number; experiment: { deviationPct: number; band: string }; analysis: { deviationPct: number; band: string } } | null;
   const excluded = (view.excluded ?? []) as Array<{ row: number; reason: string; at: string }>;
+  const correction = ((view.checks ?? null) as { correction?: { count: number; pctEach: number; marks: number } } | null)?.correction ?? null;
   const err = actionData && "error" in actionData ? actionData : null;
   return (
     <>
@@ -164,6 +174,7 @@ export default function ReviewSubmission({ loaderData, actionData }: Route.Compo
                 <tr className="border-b border-rule"><th className="py-1 pr-4">Experiment part</th><td className="num py-1">{partText(view.parts.experimentPart, outOf.experiment)}</td><td className="py-1 pl-4">{checks ? <>{MARKING_K_NAME} {sig(checks.kMarking)} against {sig(checks.kRefAtT)} {fit ? unitText(fit.kUnit) : ""} at the bench ({checks.experiment.deviationPct > 0 ? "+" : ""}{sig(checks.experiment.deviationPct, 3)} %, {checks.experiment.band})</> : null}</td></tr>
                 <tr className="border-b border-rule"><th className="py-1 pr-4">Analysis part</th><td className="num py-1">{partText(view.parts.analysisPart, outOf.analysis)}</td><td className="py-1 pl-4">{checks ? <>reported {view.reportedK !== null ? sig(view.reportedK) : "nothing"}{view.reportedMethod ? ` (${methodText(view.reportedMethod)})` : ""} against {OWN_LINE_STAFF_NAME.toLowerCase()} <span data-own-line-k={checks.kLine}>{sig(checks.kLine)}</span> ({Number.isFinite(checks.analysis.deviationPct) ? `${sig(checks.analysis.deviationPct, 3)} %` : "—"}, {checks.analysis.band})</> : null}</td></tr>
                 <tr className="border-b border-rule"><th className="py-1 pr-4">Late penalty</th><td className="num whitespace-nowrap py-1">{view.late ? `−${sig(view.parts.latePenalty, 3)} %` : "none"}</td><td /></tr>
+                {correction ? <tr className="border-b border-rule"><th className="py-1 pr-4">Corrected slips</th><td className="num whitespace-nowrap py-1">−{sig(correction.marks, 3)} marks</td><td className="py-1 pl-4">{correction.count} × {sig(correction.pctEach, 3)} % of the mark</td></tr> : null}
                 <tr><th className="py-1 pr-4">Automatic mark</th><td className="num whitespace-nowrap py-1">{sig(view.parts.autoMark, 3)} %</td><td className="py-1 pl-4">{view.overrideReason ? <>override: “{view.overrideReason}”</> : null}</td></tr>
               </tbody>
             </table></div>
@@ -212,6 +223,39 @@ export default function ReviewSubmission({ loaderData, actionData }: Route.Compo
             </Form>
             {view.parts?.overrideMark !== null && view.parts?.overrideMark !== undefined ? (
               <Form method="post" className="mt-2"><input type="hidden" name="intent" value="clear-override" /><button type="submit" className="text-accent underline">Use the automatic mark again</button></Form>
+            ) : null}
+          </section>
+
+          <section aria-labelledby="correct-h" className="rounded border border-rule bg-white p-4">
+            <h2 id="correct-h" className="text-lg font-bold">Correct a slip and re-mark</h2>
+            <p className="text-sm text-ink-soft">The engine marks the corrected readings again; the group reads the correction and its cost ({loaderData.correctionCostPct} % of the mark each, this practical's rule) in their feedback. The uploaded file stays as it was.</p>
+            <Form method="post">
+              <input type="hidden" name="intent" value="correct" />
+              <fieldset className="mt-2">
+                <legend className="font-bold">What is wrong</legend>
+                {CORRECTION_KINDS.map((k) => (
+                  <label key={k} className="flex items-center gap-2 text-sm"><input type="radio" name="kind" value={k} defaultChecked={k === "concentration-unit"} /> {CORRECTION_LABELS[k as CorrectionKind]}</label>
+                ))}
+              </fieldset>
+              <div className="mt-2 grid grid-cols-2 gap-2 text-sm">
+                <label htmlFor="f-to-conc" className="font-bold">Concentrations are in</label>
+                <select id="f-to-conc" name="toConcentration" defaultValue={CONCENTRATION_UNITS.find((u) => u !== view.concentrationUnit)} className="rounded border border-ink-soft bg-white px-2 py-1">{CONCENTRATION_UNITS.map((u) => <option key={u} value={u}>{u}</option>)}</select>
+                <label htmlFor="f-to-time" className="font-bold">Times are in</label>
+                <select id="f-to-time" name="toTime" defaultValue={TIME_UNITS.find((u) => u !== view.timeUnit)} className="rounded border border-ink-soft bg-white px-2 py-1">{TIME_UNITS.map((u) => <option key={u} value={u}>{u}</option>)}</select>
+                <label htmlFor="f-to-columns" className="font-bold">Time, value columns</label>
+                <input id="f-to-columns" name="toColumns" placeholder="e.g. B, C" className="rounded border border-ink-soft px-2 py-1" />
+                <label htmlFor="f-to-row" className="font-bold">Row in the file to leave out</label>
+                <input id="f-to-row" name="toRow" inputMode="numeric" className="rounded border border-ink-soft px-2 py-1" />
+              </div>
+              <label htmlFor="f-correct-reason" className="mt-2 block font-bold">Why (the group reads this)</label>
+              <input id="f-correct-reason" name="reason" className={input} />
+              {err?.field === "correct" ? <p role="alert" className="mt-1 text-sm font-bold text-bad">✕ {err.error}</p> : null}
+              <button type="submit" disabled={busy} className="mt-2 rounded bg-accent px-3 py-1 font-bold text-accent-ink">Correct and re-mark</button>
+            </Form>
+            {view.corrections?.length ? (
+              <ul className="mt-3 space-y-1 text-sm" data-testid="corrections">
+                {view.corrections.map((c, i) => <li key={i}>{correctionText({ kind: c.kind as CorrectionKind, from: c.from, to: c.to })}: {c.reason}</li>)}
+              </ul>
             ) : null}
           </section>
 
