@@ -10,6 +10,7 @@ import { QueryTypes } from "sequelize";
 import { action as courseAction, loader as courseLoader } from "~/routes/courses/course";
 import { action as rosterAction } from "~/routes/courses/roster";
 import { action as groupsAction } from "~/routes/courses/groups";
+import { action as platformMarksAction } from "~/routes/sessions/platform-marks";
 import { action as reactionsAction } from "~/routes/courses/reactions";
 import { action as sessionNewAction } from "~/routes/courses/session-new";
 import { action as courseGradebookAction } from "~/routes/courses/gradebook";
@@ -131,6 +132,7 @@ describe("an archived course is read-only everywhere", () => {
         "sessions/review-submission.tsx", reviewSubmissionAction,
         form(`/sessions/${s}/review/${sub}`, { intent, row: "2", reason: "late", mark: "80", body: "A comment" }), { sessionId: s, submissionId: sub },
       ]),
+      ["sessions/platform-marks.tsx", platformMarksAction, form(`/sessions/${s}/platform-marks`, { intent: "resend" }), { sessionId: s }],
       ["sessions/class-results.tsx", classResultsAction, form(`/sessions/${s}/class-results`, { intent: "exclude", benchId: String(p.benches[0].id), reason: "late" }), { sessionId: s }],
       ["groups/submissions.tsx", groupUploadPage, (cookie) => uploadRequest(`/groups/${g}/submissions`, cookie, { bytes: CSV, name: "again.csv" }), { groupId: g }],
       ["api/group-submissions.ts", apiUpload, (cookie) => uploadRequest(`/api/groups/${g}/submissions`, cookie, { bytes: CSV, name: "again.csv" }), { groupId: g }],
