@@ -4,8 +4,7 @@
 // Axes carry the quantity and unit; a caption says what the marks are, so colour is not needed.
 // The SVG is drawn at the width it is shown at (measured in the browser), so its text stays at
 // 11 px and more on a phone instead of shrinking with a scaled-down picture.
-import { useEffect, useId, useRef, useState } from "react";
-import { span, toEdge, type Side } from "~/lib/plots/edge";
+import { useEffect, useRef, useState } from "react";
 import { scaleLinear } from "d3-scale";
 import { sig } from "~/lib/format";
 
@@ -25,8 +24,6 @@ export interface XYPlotProps {
   legend?: { points?: string; curve?: string; crosses?: string; dashed?: string };
   /** a tooltip per point (same order as `points`), e.g. the reading's row in the file */
   pointLabels?: string[];
-  /** scale the axes to the points and the curve only: crosses outside are drawn on the edge with an arrow */
-  fitToPoints?: boolean;
   /** a tooltip per cross (same order as `crosses`) */
   crossLabels?: string[];
 }
@@ -62,39 +59,17 @@ function useWidth<T extends HTMLElement>() {
   return [ref, width] as const;
 }
 
-/** A small filled triangle on the frame pointing the way the point lies. */
-function edgeArrow(cx: number, cy: number, side: Exclude<Side, null>): string {
-  const s = 7;
-  switch (side) {
-    case "above": return `M${cx - s},${cy + s}L${cx + s},${cy + s}L${cx},${cy}Z`;
-    case "below": return `M${cx - s},${cy - s}L${cx + s},${cy - s}L${cx},${cy}Z`;
-    case "left": return `M${cx + s},${cy - s}L${cx + s},${cy + s}L${cx},${cy}Z`;
-    case "right": return `M${cx - s},${cy - s}L${cx - s},${cy + s}L${cx},${cy}Z`;
-  }
-}
-
-export function XYPlot({ title, xLabel, yLabel, points, curve = [], zeroLine = false, height = 300, crosses: crossesIn = [], dashed = [], legend = {}, pointLabels, crossLabels, fitToPoints = false }: XYPlotProps) {
+export function XYPlot({ title, xLabel, yLabel, points, curve = [], zeroLine = false, height = 300, crosses = [], dashed = [], legend = {}, pointLabels, crossLabels }: XYPlotProps) {
   const [box, W] = useWidth<HTMLDivElement>();
-  const clipId = `xy-frame-${useId().replace(/[^A-Za-z0-9_-]/g, "")}`;
-  const finite = (p: [number, number]) => Number.isFinite(p[0]) && Number.isFinite(p[1]);
-  const kept = [...points, ...curve].filter(finite);
-  const fit = fitToPoints && kept.length > 0;
-  // with fitToPoints the axes hold the points that count and the curve; a cross beyond them is
-  // moved onto the frame (the nice()d domain, so exactly on the axis line) and marked by an arrow
-  const niceOf = (values: number[]): [number, number] => scaleLinear().domain(span(values) ?? [0, 1]).nice().domain() as [number, number];
-  const xDomain = fit ? niceOf(kept.map((p) => p[0])) : null;
-  const yDomain = fit ? niceOf([...kept.map((p) => p[1]), ...(zeroLine ? [0] : [])]) : null;
-  const edges = crossesIn.map((p) => (xDomain && yDomain && finite(p) ? toEdge(p, xDomain, yDomain) : { at: p, side: null as Side }));
-  const crosses = edges.map((e) => e.at);
-  const all = [...points, ...curve, ...crosses, ...dashed].filter(finite);
+  const all = [...points, ...curve, ...crosses, ...dashed].filter((p) => Number.isFinite(p[0]) && Number.isFinite(p[1]));
   const ys = all.map((p) => p[1]);
   if (zeroLine) ys.push(0);
-  const yScale = yDomain ? scaleLinear().domain(yDomain) : scaleLinear().domain(extent(ys)).nice();
+  const yScale = scaleLinear().domain(extent(ys)).nice();
   const yTicks = yScale.ticks(height < 250 ? 4 : 5);
   // Room on the left for the longest tick text and the rotated axis label.
   const tickChars = Math.max(...yTicks.map((t) => sig(t, 3).length), 1);
   const M = { top: 12, right: 16, bottom: 46, left: Math.ceil(tickChars * TICK_PX * 0.6) + 12 + LABEL_PX + 10 };
-  const x = (xDomain ? scaleLinear().domain(xDomain) : scaleLinear().domain(extent(all.map((p) => p[0]))).nice()).range([M.left, W - M.right]);
+  const x = scaleLinear().domain(extent(all.map((p) => p[0]))).nice().range([M.left, W - M.right]);
   const y = yScale.range([height - M.bottom, M.top]);
   const pathOf = (line: Array<[number, number]>) =>
     line
@@ -120,22 +95,19 @@ export function XYPlot({ title, xLabel, yLabel, points, curve = [], zeroLine = f
         <line x1={M.left} x2={M.left} y1={M.top} y2={height - M.bottom} stroke="#1d2125" />
         <line x1={M.left} x2={W - M.right} y1={height - M.bottom} y2={height - M.bottom} stroke="#1d2125" />
         {zeroLine ? <line x1={M.left} x2={W - M.right} y1={y(0)} y2={y(0)} stroke="#1d2125" strokeDasharray="4 3" /> : null}
-        {fit ? <clipPath id={clipId}><rect x={M.left} y={M.top} width={Math.max(0, W - M.left - M.right)} height={Math.max(0, height - M.top - M.bottom)} /></clipPath> : null}
-        {dashedPath ? <path d={dashedPath} fill="none" stroke="#8a4b08" strokeWidth="2" strokeDasharray="7 4" data-series="dashed" clipPath={fit ? `url(#${clipId})` : undefined} /> : null}
+        {dashedPath ? <path d={dashedPath} fill="none" stroke="#8a4b08" strokeWidth="2" strokeDasharray="7 4" data-series="dashed" /> : null}
         {path ? <path d={path} fill="none" stroke="#0b6170" strokeWidth="2" data-series="curve" /> : null}
         {points.map((p, i) => Number.isFinite(p[1]) ? (
           <circle key={i} cx={x(p[0])} cy={y(p[1])} r="3.5" fill="none" stroke="#1d2125" strokeWidth="1.5" data-series="points">{pointLabels?.[i] ? <title>{pointLabels[i]}</title> : null}</circle>
         ) : null)}
-        {crosses.map((p, i) => Number.isFinite(p[0]) && Number.isFinite(p[1]) && edges[i].side ? (
-          <path key={`e${i}`} d={edgeArrow(x(p[0]), y(p[1]), edges[i].side!)} fill="#a3261b" data-series="edge" data-side={edges[i].side!}>{crossLabels?.[i] ? <title>{`${crossLabels[i]} (outside the axes, ${edges[i].side})`}</title> : null}</path>
-        ) : Number.isFinite(p[0]) && Number.isFinite(p[1]) ? (
+        {crosses.map((p, i) => Number.isFinite(p[0]) && Number.isFinite(p[1]) ? (
           <path key={`c${i}`} d={`M${(x(p[0]) - 4.5).toFixed(1)},${(y(p[1]) - 4.5).toFixed(1)}l9,9m0,-9l-9,9`} fill="none" stroke="#a3261b" strokeWidth="2" data-series="crosses">{crossLabels?.[i] ? <title>{crossLabels[i]}</title> : null}</path>
         ) : null)}
         <text x={(M.left + W - M.right) / 2} y={height - 8} textAnchor="middle" fontSize={LABEL_PX} fontWeight="bold">{xLabel}</text>
         <text transform={`translate(${LABEL_PX + 2} ${(M.top + height - M.bottom) / 2}) rotate(-90)`} textAnchor="middle" fontSize={LABEL_PX} fontWeight="bold">{yLabel}</text>
       </svg>
       <figcaption className="text-sm text-ink-soft">
-        {title}: open circles are {legend.points ?? "measured points"}{shownCrosses.length ? `; crosses are ${legend.crosses ?? "other points"}` : ""}{edges.some((e) => e.side) ? "; a filled arrow on the frame is one of them lying beyond the axes, pointing its way (its value is in the table)" : ""}{path ? `; the solid line is ${legend.curve ?? "the fitted model"}` : ""}{dashedPath ? `; the long-dashed line is ${legend.dashed ?? "a second line"}` : ""}{zeroLine ? "; the dashed line is zero" : ""}.
+        {title}: open circles are {legend.points ?? "measured points"}{shownCrosses.length ? `; crosses are ${legend.crosses ?? "other points"}` : ""}{path ? `; the solid line is ${legend.curve ?? "the fitted model"}` : ""}{dashedPath ? `; the long-dashed line is ${legend.dashed ?? "a second line"}` : ""}{zeroLine ? "; the dashed line is zero" : ""}.
       </figcaption>
     </figure>
   );

@@ -115,8 +115,6 @@ export default function ClassResultsPage({ loaderData, actionData }: Route.Compo
             yLabel={`ln(k / (${unit}))`}
             points={plot.inFit}
             crosses={plot.excluded}
-            fitToPoints
-            crossLabels={benches.filter((b) => b.state === "excluded").map((b) => `Bench ${b.bench}, left out: ln k = ${sig(b.lnK!, 4)}`)}
             curve={plot.fitted}
             dashed={plot.reference}
             legend={{ points: "benches in the fit", crosses: "benches left out of the fit", curve: "the class fit", dashed: "the reference" }}
@@ -164,7 +162,7 @@ export default function ClassResultsPage({ loaderData, actionData }: Route.Compo
             {excluded.map((b) => (
               <li key={b.benchId} className="flex flex-wrap items-start justify-between gap-2 py-2">
                 <div className="min-w-0">
-                  <p><span className="font-bold">Bench {b.bench}</span> ({b.group}, {sig(b.temperatureC, 3)} °C{b.lnK !== null ? <>, <span data-left-out-lnk={b.lnK}>ln k = {sig(b.lnK, 4)}</span></> : null}): <span className="break-words">{b.exclusion!.reason}</span></p>
+                  <p><span className="font-bold">Bench {b.bench}</span> ({b.group}, {sig(b.temperatureC, 3)} °C): <span className="break-words">{b.exclusion!.reason}</span></p>
                   <p className="text-sm text-ink-soft">Left out by {b.exclusion!.by ?? "a former member"}, {b.exclusion!.at.slice(0, 16).replace("T", " ")} UTC</p>
                 </div>
                 {canChange ? (
