@@ -22,7 +22,6 @@ import * as m0025 from "./migrations/0025-gradebook-versions";
 import * as m0035 from "./migrations/0035-rate-limits";
 import * as m0040 from "./migrations/0040-sso-identities";
 import * as m0046 from "./migrations/0046-course-time-zone";
-import * as m0047 from "./migrations/0047-worker-heartbeats";
 import * as m0048 from "./migrations/0048-version-that-counts";
 import * as m0049 from "./migrations/0049-submission-corrections";
 import * as m0050 from "./migrations/0050-lti-launch";
@@ -44,7 +43,6 @@ const migrations: Migration[] = [
   { name: "0035-rate-limits", ...m0035 },
   { name: "0040-sso-identities", ...m0040 },
   { name: "0046-course-time-zone", ...m0046 },
-  { name: "0047-worker-heartbeats", ...m0047 },
   { name: "0048-version-that-counts", ...m0048 },
   { name: "0049-submission-corrections", ...m0049 },
   { name: "0050-lti-launch", ...m0050 },

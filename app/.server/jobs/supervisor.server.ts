@@ -24,8 +24,6 @@ export interface KeptWorker<R extends RunnerLike> {
   current(): R | null;
   /** how many times a runner was replaced */
   restarts(): number;
-  /** stops the current runner so that it is replaced (its jobs unlocked), as if it had failed */
-  replace(reason: string): void;
   stop(): Promise<void>;
   /** settles once stop() has finished */
   promise: Promise<void>;
@@ -80,13 +78,6 @@ export async function keepRunning<R extends RunnerLike>(deps: SupervisorDeps<R>)
   return {
     current: () => current,
     restarts: () => restarts,
-    replace(reason: string) {
-      const runner = current;
-      if (stopping || !runner) return;
-      deps.log(`[jobs] replacing the worker: ${reason}`);
-      // A runner that ends without stop() being asked for is replaced by the loop above.
-      runner.stop().catch(() => undefined);
-    },
     async stop() {
       stopping = true;
       await current?.stop().catch(() => undefined);
